@@ -1,0 +1,1 @@
+"""Sealwalk's record: jobs, walls, seal points, findings, photos, events, and the web app."""

@@ -1,0 +1,1 @@
+"""REST API: every object is reached through the job it belongs to."""

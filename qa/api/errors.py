@@ -1,0 +1,28 @@
+"""Error answers: always JSON, always naming the field and the rule."""
+
+from __future__ import annotations
+
+from django.core.exceptions import PermissionDenied as DjangoPermissionDenied
+from django.http import Http404
+from rest_framework import exceptions
+from rest_framework.views import exception_handler as drf_handler
+
+from ..models.findings import TransitionError
+from ..photos import PhotoError
+
+
+def _field_error(exc: ValueError) -> dict:
+    # Messages of our own domain errors start with "field: rule".
+    text = str(exc)
+    field, _, rule = text.partition(": ")
+    return {field: [rule]} if rule else {"non_field_errors": [text]}
+
+
+def exception_handler(exc, context):
+    if isinstance(exc, (TransitionError, PhotoError)):
+        exc = exceptions.ValidationError(_field_error(exc))
+    elif isinstance(exc, DjangoPermissionDenied):
+        exc = exceptions.PermissionDenied(str(exc) or None)
+    elif isinstance(exc, Http404):
+        exc = exceptions.NotFound(str(exc) or None)
+    return drf_handler(exc, context)

@@ -1,0 +1,104 @@
+"""Photo upload and the only route to photo files (membership checked on every request)."""
+
+from __future__ import annotations
+
+from django.core.files.base import ContentFile
+from django.db import transaction
+from django.http import FileResponse, Http404
+from django.views.decorators.http import require_GET
+from rest_framework import mixins, status, viewsets
+from rest_framework.exceptions import ValidationError
+from rest_framework.parsers import FormParser, MultiPartParser
+from rest_framework.response import Response
+
+from ..access import membership, require
+from ..choices import PhotoPurpose, Role
+from ..models import Photo
+from ..photos import clean_photo
+from . import serializers as s
+from .views import JobScopedMixin, _is_uuid
+
+
+class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                   mixins.DestroyModelMixin, viewsets.GenericViewSet):
+    """Photos of a job. Upload as multipart with ``image``; the photo ``id`` is made on the device,
+    so uploading the same id again returns the stored photo instead of a twin."""
+
+    serializer_class = s.PhotoSerializer
+    parser_classes = [MultiPartParser, FormParser]
+    lookup_value_regex = "[0-9a-fA-F-]{36}"
+    write_right = "fix"  # inspectors and crews add photos; owners do not
+
+    def get_queryset(self):
+        photos = Photo.objects.filter(job=self.job, removed=False).select_related("uploaded_by")
+        params = self.request.query_params
+        if params.get("finding"):
+            photos = photos.filter(finding_id=params["finding"]) if params["finding"].isdigit() else photos.none()
+        if params.get("wall"):
+            photos = photos.filter(wall_id=params["wall"]) if params["wall"].isdigit() else photos.none()
+        return photos
+
+    def create(self, request, *args, **kwargs):
+        photo_id = request.data.get("id")
+        if photo_id and _is_uuid(photo_id):
+            existing = Photo.objects.filter(pk=photo_id).first()
+            if existing is not None:
+                if existing.job_id != self.job.id:
+                    raise ValidationError({"id": ["is already used"]})
+                return Response(self.get_serializer(existing).data, status=status.HTTP_200_OK)
+        serializer = self.get_serializer(data=request.data)
+        serializer.is_valid(raise_exception=True)
+        data = serializer.validated_data
+        finding = data.get("finding")
+        purpose = data.get("purpose", PhotoPurpose.DEFECT)
+        if self.member.role == Role.CREW:
+            if finding is None:
+                raise ValidationError({"finding": ["crew photos show the fix of a finding"]})
+            require(self.member, "fix", trade=finding.trade)
+            purpose = PhotoPurpose.FIX
+        upload = data["image"]
+        clean = clean_photo(upload.read())
+        with transaction.atomic():
+            photo = Photo(
+                job=self.job,
+                wall=data["wall"],
+                finding=finding,
+                purpose=purpose,
+                caption=data.get("caption", ""),
+                captured_at=data.get("captured_at") or clean.captured_at,
+                bytes=len(clean.image), width=clean.width, height=clean.height,
+                sha256=clean.sha256,
+                received_sha256=clean.received_sha256,
+                original_format=clean.original_format,
+                uploaded_by=request.user,
+            )
+            if data.get("id"):
+                photo.id = data["id"]
+            photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
+            photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
+            photo.save()
+            self.record("photo.added", photo, {"finding": finding.id if finding else None, "purpose": purpose,
+                                               "sha256": photo.sha256})
+        return Response(self.get_serializer(photo).data, status=status.HTTP_201_CREATED)
+
+    @transaction.atomic
+    def perform_destroy(self, photo):
+        require(self.member, "edit")
+        photo.removed = True
+        photo.save(update_fields=["removed"])
+        self.record("photo.removed", photo)
+
+
+@require_GET
+def photo_file(request, job_pk, photo_id, kind):
+    """Stream a photo or its thumbnail after checking the user is a member of its job."""
+    membership(request.user, job_pk)
+    try:
+        photo = Photo.objects.get(pk=photo_id, job_id=job_pk, removed=False)
+    except (Photo.DoesNotExist, ValueError):
+        raise Http404("No such photo") from None
+    field = photo.image if kind == "image" else photo.thumbnail
+    response = FileResponse(field.open("rb"), content_type="image/jpeg")
+    response["Cache-Control"] = "private, max-age=86400"
+    response["X-Content-Type-Options"] = "nosniff"
+    return response

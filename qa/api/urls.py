@@ -1,0 +1,33 @@
+"""API routes: /api/jobs/{job}/..., the schema and the docs page."""
+
+from __future__ import annotations
+
+from django.urls import include, path
+from rest_framework.routers import SimpleRouter
+
+from . import auth, docs, photo_views, views
+
+jobs = SimpleRouter()
+jobs.register("jobs", views.JobViewSet, basename="job")
+
+in_job = SimpleRouter()
+in_job.register("members", views.MemberViewSet, basename="member")
+in_job.register("wall-types", views.WallTypeViewSet, basename="walltype")
+in_job.register("walls", views.WallViewSet, basename="wall")
+in_job.register("findings", views.FindingViewSet, basename="finding")
+in_job.register("photos", photo_views.PhotoViewSet, basename="photo")
+in_job.register("events", views.EventViewSet, basename="event")
+
+in_wall = SimpleRouter()
+in_wall.register("openings", views.OpeningViewSet, basename="opening")
+in_wall.register("seal-points", views.SealPointViewSet, basename="sealpoint")
+
+urlpatterns = [
+    path("", include(jobs.urls)),
+    path("jobs/<int:job_pk>/", include(in_job.urls)),
+    path("jobs/<int:job_pk>/walls/<int:wall_pk>/", include(in_wall.urls)),
+    path("auth/token/", auth.ObtainToken.as_view(), name="token"),
+    path("auth/token/revoke/", auth.RevokeToken.as_view(), name="token-revoke"),
+    path("schema/", docs.schema_view, name="schema"),
+    path("docs/", docs.docs_page, name="docs"),
+]

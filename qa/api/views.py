@@ -1,0 +1,362 @@
+"""API views. Thin: resolve the job through the access helper, let serializers validate, let models act."""
+
+from __future__ import annotations
+
+from django.db import transaction
+from django.db.models import Count, Prefetch, Q
+from rest_framework import mixins, status, viewsets
+from rest_framework.decorators import action
+from rest_framework.exceptions import NotFound, ValidationError
+from rest_framework.response import Response
+
+from ..access import membership, require
+from ..choices import FindingStatus, SealStatus
+from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+from ..models.findings import TransitionError
+from . import serializers as s
+
+READ_ACTIONS = {"list", "retrieve", "metadata"}
+
+
+class JobScopedMixin:
+    """Resolve ``job_pk`` for every request: a non-member gets 404, a member without the right 403."""
+
+    #: The right needed for writes (reads need "view").
+    write_right = "edit"
+
+    def initial(self, request, *args, **kwargs):
+        super().initial(request, *args, **kwargs)
+        self.member = membership(request.user, kwargs.get("job_pk"))
+        self.job = self.member.job
+        require(self.member, self.right_needed())
+
+    def right_needed(self) -> str:
+        return "view" if self.action in READ_ACTIONS or self.action is None else self.write_right
+
+    def get_serializer_context(self):
+        context = super().get_serializer_context()
+        if hasattr(self, "job"):
+            context["job"] = self.job
+        return context
+
+    def record(self, verb: str, target, data: dict | None = None) -> None:
+        Event.record(self.job, self.request.user, verb, target, data)
+
+
+class JobViewSet(viewsets.ReadOnlyModelViewSet):
+    """Jobs the user is a member of."""
+
+    serializer_class = s.JobSerializer
+    lookup_url_kwarg = "job_pk"
+
+    def get_queryset(self):
+        return Job.objects.for_user(self.request.user)
+
+    def get_serializer_context(self):
+        context = super().get_serializer_context()
+        members = Member.objects.filter(user=self.request.user, active=True) if self.request.user.is_authenticated \
+            else []
+        context["members"] = {m.job_id: m for m in members}
+        return context
+
+    def retrieve(self, request, *args, **kwargs):
+        membership(request.user, kwargs["job_pk"])
+        return super().retrieve(request, *args, **kwargs)
+
+
+class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                    mixins.UpdateModelMixin, viewsets.GenericViewSet):
+    """Members of a job. Inspectors manage them; removing a member deactivates it."""
+
+    serializer_class = s.MemberSerializer
+    write_right = "manage_members"
+
+    def get_queryset(self):
+        return Member.objects.filter(job=self.job).select_related("user").order_by("id")
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        member = serializer.save(job=self.job)
+        self.record("member.added", member, {"role": member.role, "trade": member.trade})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        member = serializer.save()
+        self.record("member.changed", member, {"role": member.role, "trade": member.trade, "active": member.active})
+
+
+class WallTypeViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                      mixins.UpdateModelMixin, viewsets.GenericViewSet):
+    serializer_class = s.WallTypeSerializer
+
+    def get_queryset(self):
+        return WallType.objects.filter(job=self.job)
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        wall_type = serializer.save(job=self.job)
+        self.record("walltype.created", wall_type, {"code": wall_type.code})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        wall_type = serializer.save()
+        self.record("walltype.changed", wall_type, {"fields": sorted(serializer.validated_data)})
+
+
+class WallViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                  mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+    """Walls of a job, filterable by ``level`` and ``wall_type``. Creating a wall creates its seal points."""
+
+    serializer_class = s.WallSerializer
+
+    def get_queryset(self):
+        walls = Wall.objects.live().filter(job=self.job).annotate(
+            seal_points_total=Count("seal_points", filter=Q(seal_points__removed=False), distinct=True),
+            seal_points_checked=Count(
+                "seal_points",
+                filter=Q(seal_points__removed=False) & ~Q(seal_points__status=SealStatus.UNCHECKED),
+                distinct=True,
+            ),
+            findings_open=Count(
+                "findings",
+                filter=Q(findings__removed=False, findings__status__in=[FindingStatus.OPEN, FindingStatus.REOPENED]),
+                distinct=True,
+            ),
+        )
+        params = self.request.query_params
+        if params.get("level"):
+            walls = walls.filter(level=params["level"])
+        if params.get("wall_type"):
+            walls = walls.filter(wall_type_id=params["wall_type"]) if params["wall_type"].isdigit() else walls.none()
+        return walls
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        wall = serializer.save(job=self.job)
+        wall.add_template_seal_points()
+        self.record("wall.created", wall, {"tag": wall.tag})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        wall = serializer.save(version=serializer.instance.version + 1)
+        self.record("wall.changed", wall, {"fields": sorted(serializer.validated_data)})
+
+    @transaction.atomic
+    def perform_destroy(self, wall):
+        wall.removed = True
+        wall.version += 1
+        wall.save(update_fields=["removed", "version", "updated_at"])
+        self.record("wall.removed", wall, {"tag": wall.tag})
+
+
+class WallChildMixin(JobScopedMixin):
+    """Objects that hang off one wall: /jobs/{job}/walls/{wall}/..."""
+
+    def initial(self, request, *args, **kwargs):
+        super().initial(request, *args, **kwargs)
+        try:
+            self.wall = Wall.objects.select_related("wall_type").get(
+                pk=int(kwargs["wall_pk"]), job=self.job, removed=False
+            )
+        except (Wall.DoesNotExist, ValueError):
+            raise NotFound("No such wall in this job") from None
+
+    def get_serializer_context(self):
+        context = super().get_serializer_context()
+        if hasattr(self, "wall"):
+            context["wall"] = self.wall
+        return context
+
+
+class OpeningViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                     mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+    serializer_class = s.OpeningSerializer
+
+    def get_queryset(self):
+        return Opening.objects.filter(wall=self.wall, removed=False)
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        opening = serializer.save(wall=self.wall)
+        if opening.kind == "door":
+            self.wall.add_door_seal_points()
+        self.record("opening.created", opening, {"wall": self.wall.tag})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        opening = serializer.save()
+        self.record("opening.changed", opening, {"fields": sorted(serializer.validated_data)})
+
+    @transaction.atomic
+    def perform_destroy(self, opening):
+        opening.removed = True
+        opening.save(update_fields=["removed"])
+        self.record("opening.removed", opening, {"wall": self.wall.tag})
+
+
+class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                       mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+    """Seal points of a wall. PATCH ``status`` to tick one; DELETE removes it (kept in the record)."""
+
+    serializer_class = s.SealPointSerializer
+
+    def get_queryset(self):
+        return SealPoint.objects.filter(wall=self.wall, removed=False)
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        position = (self.get_queryset().order_by("-position").values_list("position", flat=True).first() or 0) + 1
+        point = serializer.save(wall=self.wall, position=serializer.validated_data.get("position", position))
+        self.record("sealpoint.added", point, {"label": point.label})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        from django.utils import timezone
+
+        point = serializer.instance
+        extra = {"version": point.version + 1}
+        new_status = serializer.validated_data.get("status")
+        if new_status and new_status != point.status:
+            extra.update(checked_by=self.request.user, checked_at=timezone.now())
+        old_status = point.status
+        point = serializer.save(**extra)
+        if new_status and new_status != old_status:
+            self.record("sealpoint.checked", point, {"from": old_status, "to": new_status})
+        else:
+            self.record("sealpoint.changed", point, {"fields": sorted(serializer.validated_data)})
+
+    @transaction.atomic
+    def perform_destroy(self, point):
+        point.removed = True
+        point.version += 1
+        point.save(update_fields=["removed", "version"])
+        self.record("sealpoint.removed", point, {"label": point.label})
+
+
+class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
+                     mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+    """Findings of a job, filterable by ``wall``, ``level``, ``trade`` and ``status``.
+
+    Crew members see every finding of the job but may act only on their own trade's.
+    A replayed create with the same ``client_id`` returns the finding already stored.
+    """
+
+    serializer_class = s.FindingSerializer
+    STEP_RIGHTS = {"fix": "fix", "verify": "verify", "reopen": "verify"}
+
+    def right_needed(self) -> str:
+        return self.STEP_RIGHTS.get(self.action) or super().right_needed()
+
+    def get_queryset(self):
+        findings = (
+            Finding.objects.live()
+            .filter(job=self.job)
+            .select_related("created_by")
+            .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
+        )
+        params = self.request.query_params
+        for key, field in (("trade", "trade"), ("status", "status"), ("level", "wall__level"), ("kind", "kind")):
+            if params.get(key):
+                findings = findings.filter(**{field: params[key]})
+        if params.get("wall"):
+            findings = findings.filter(wall_id=params["wall"]) if params["wall"].isdigit() else findings.none()
+        return findings
+
+    def create(self, request, *args, **kwargs):
+        client_id = request.data.get("client_id") if hasattr(request.data, "get") else None
+        if client_id:
+            existing = Finding.objects.filter(client_id=str(client_id)).first() if _is_uuid(client_id) else None
+            if existing is not None:
+                if existing.job_id != self.job.id:
+                    raise ValidationError({"client_id": ["is already used"]})
+                return Response(self.get_serializer(existing).data, status=status.HTTP_200_OK)
+        return super().create(request, *args, **kwargs)
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        finding = serializer.save(job=self.job, created_by=self.request.user)
+        point = finding.seal_point
+        if point is not None and point.status != SealStatus.DEFECT:
+            point.status, point.version = SealStatus.DEFECT, point.version + 1
+            point.save(update_fields=["status", "version"])
+        self.record("finding.created", finding, {"wall": finding.wall.tag, "kind": finding.kind,
+                                                 "trade": finding.trade})
+
+    def perform_update(self, serializer):
+        seen = self.request.data.get("version") if hasattr(self.request.data, "get") else None
+        with transaction.atomic():
+            finding = Finding.objects.select_for_update().get(pk=serializer.instance.pk)
+            if seen is not None and str(seen) != str(finding.version):
+                raise _Stale(finding)
+            serializer.instance = finding
+            finding = serializer.save(version=finding.version + 1)
+            self.record("finding.edited", finding, {"fields": sorted(serializer.validated_data),
+                                                    "version": finding.version})
+
+    @transaction.atomic
+    def perform_destroy(self, finding):
+        finding.remove(self.request.user)
+
+    def _step(self, request, name: str):
+        body = s.NoteSerializer(data=request.data)
+        body.is_valid(raise_exception=True)
+        with transaction.atomic():
+            finding = Finding.objects.select_for_update().get(pk=self.get_object().pk)
+            require(self.member, self.STEP_RIGHTS[name], trade=finding.trade)
+            seen = body.validated_data.get("version")
+            if seen is not None and seen != finding.version:
+                raise _Stale(finding)
+            try:
+                {"fix": finding.mark_fixed, "verify": finding.verify, "reopen": finding.reopen}[name](
+                    request.user, body.validated_data["note"]
+                )
+            except TransitionError as exc:
+                return Response({"status": [str(exc).partition(": ")[2]]}, status=status.HTTP_409_CONFLICT)
+        return Response(self.get_serializer(finding).data)
+
+    @action(detail=True, methods=["post"], serializer_class=s.NoteSerializer)
+    def fix(self, request, *args, **kwargs):
+        """Mark fixed (crew of the finding's trade, or the inspector)."""
+        return self._step(request, "fix")
+
+    @action(detail=True, methods=["post"], serializer_class=s.NoteSerializer)
+    def verify(self, request, *args, **kwargs):
+        """Verify a fixed finding (inspector)."""
+        return self._step(request, "verify")
+
+    @action(detail=True, methods=["post"], serializer_class=s.NoteSerializer)
+    def reopen(self, request, *args, **kwargs):
+        """Reopen a fixed or verified finding (inspector)."""
+        return self._step(request, "reopen")
+
+
+class _Stale(ValidationError):
+    status_code = status.HTTP_409_CONFLICT
+
+    def __init__(self, finding):
+        super().__init__({"version": [f"is stale: the finding is now at version {finding.version}"]})
+
+
+def _is_uuid(value) -> bool:
+    import uuid
+
+    try:
+        uuid.UUID(str(value))
+    except ValueError:
+        return False
+    return True
+
+
+class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSet):
+    """The job's audit trail (read-only, append-only). Filter by ``target_type`` and ``target_id``."""
+
+    serializer_class = s.EventSerializer
+
+    def get_queryset(self):
+        events = Event.objects.filter(job=self.job).select_related("actor").order_by("-at", "-id")
+        params = self.request.query_params
+        if params.get("target_type"):
+            events = events.filter(target_type=params["target_type"])
+        if params.get("target_id"):
+            events = events.filter(target_id=params["target_id"])
+        return events

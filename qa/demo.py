@@ -1,0 +1,233 @@
+"""The demo job: an invented building, invented people, generated photos. Demo only, never a test oracle.
+
+Harbourline Residences is a fictional four-storey apartment block. Levels 2–4 each have six units
+off one corridor; every level has five walls between units, two corridor walls with unit entry
+doors and one wall at the lift shaft.
+"""
+
+from __future__ import annotations
+
+import io
+import random
+from datetime import datetime, timedelta, timezone
+
+from django.contrib.auth import get_user_model
+from django.core.files.base import ContentFile
+from django.db import transaction
+from PIL import Image, ImageDraw, ImageFilter
+
+from .choices import FindingStatus, PhotoPurpose, Role, SealStatus
+from .impact import resolve_wall_type_curve
+from .models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+from .photos import clean_photo
+
+JOB_NAME = "Harbourline Residences"
+PASSWORD = "walk-the-walls"
+
+PEOPLE = [
+    # username, first, last, role, trade
+    ("inspector", "Noor", "Castellan", Role.INSPECTOR, ""),
+    ("owner", "Helena", "Marsh", Role.OWNER, ""),
+    ("drywall", "Tomasz", "Ferreira", Role.CREW, "drywall"),
+    ("electrical", "Ada", "Okonkwo", Role.CREW, "electrical"),
+    ("plumbing", "Ravi", "Lindqvist", Role.CREW, "plumbing"),
+    ("hvac", "Mina", "Sato", Role.CREW, "hvac"),
+    ("doors", "Jonah", "Pell", Role.CREW, "doors"),
+    ("insulation", "Lucia", "Brandt", Role.CREW, "insulation"),
+]
+
+BATT = {"thickness": 0.089, "flow_resistivity": 10000}
+X16 = "gypsum_15.9_x"
+WALL_TYPES = [
+    dict(code="W1", name="Staggered wood studs, one layer 15.9 mm fire-rated board each face",
+         construction="staggered_stud", thickness_m=0.172,
+         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
+                 "cavity": {"depth": 0.140, "absorber": BATT},
+                 "connection": {"type": "staggered_studs", "spacing": 0.406}}),
+    dict(code="W2", name="Double wood studs with 25 mm gap, one layer 15.9 mm fire-rated board each face",
+         construction="double_stud", thickness_m=0.235,
+         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
+                 "cavity": {"depth": 0.203, "absorber": BATT},
+                 "connection": {"type": "double_studs", "spacing": 0.406}}),
+    dict(code="W3", name="Steel studs 92 mm, resilient channel on the unit face, 15.9 mm fire-rated board",
+         construction="resilient_channel", thickness_m=0.137,
+         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
+                 "cavity": {"depth": 0.092, "absorber": {"thickness": 0.076, "flow_resistivity": 10000}},
+                 "connection": {"type": "steel_stud", "spacing": 0.61,
+                                "resilient_channel": {"leaf": 1, "spacing": 0.61}}}),
+    dict(code="W4", name="Concrete block 190 mm, faces sealed", construction="masonry", thickness_m=0.19,
+         layers={"leaves": [{"layers": ["cmu_190"]}]}),
+]
+
+# (kind, seal-point key fragment, face, trade, geometry in SI, note)
+FINDING_PATTERNS = [
+    ("slit", "bottom", "a", "drywall", {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
+     "Bead missing under the board between two studs."),
+    ("slit", "bottom", "through", "drywall", {"width_m": 0.008, "length_m": 0.9, "depth_m": 0.17},
+     "Track not bedded; daylight under the plate on both faces."),
+    ("hole", "box", "a", "electrical", {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
+     "Knockouts open on the back-box."),
+    ("back_to_back", "box", "through", "electrical", {"area_m2": 0.0006, "depth_m": 0.15},
+     "Boxes back to back in the same stud bay, no pad."),
+    ("ring", "pipe", "through", "plumbing", {"diameter_m": 0.022, "width_m": 0.006, "depth_m": 0.17},
+     "Annular space around the supply line left open."),
+    ("ring", "duct", "through", "hvac", {"diameter_m": 0.10, "width_m": 0.010, "depth_m": 0.17},
+     "Exhaust duct sleeve not packed."),
+    ("missing_insulation", "insulation", "through", "insulation", {"area_m2": 0.5},
+     "Batt missing in one bay behind the vanity."),
+    ("slit", "head", "through", "drywall", {"width_m": 0.012, "length_m": 2.0, "depth_m": 0.17},
+     "Deflection gap at the head open over two metres."),
+    ("open_area", "cut", "a", "drywall", {"area_m2": 0.004, "depth_m": 0.0159},
+     "Oversized cut-out left by another trade."),
+]
+DOOR_PATTERN = ("slit", "door", "through", "doors", {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
+                "Door bottom seal not fitted; 12 mm undercut.")
+
+
+def _users():
+    User = get_user_model()
+    users = {}
+    for username, first, last, _role, _trade in PEOPLE:
+        user, created = User.objects.get_or_create(username=username, defaults={"first_name": first,
+                                                                                "last_name": last})
+        if created:
+            user.set_password(PASSWORD)
+            user.save()
+        users[username] = user
+    return users
+
+
+def demo_photo(seed: int, label: str, when: datetime) -> bytes:
+    """A generated 'site photo': board, stud shadow, a dark gap, a tape measure, EXIF capture time."""
+    rng = random.Random(seed)
+    w, h = 1280, 960
+    img = Image.new("RGB", (w, h), (196 + rng.randint(-8, 8), 194, 186))
+    draw = ImageDraw.Draw(img)
+    for x in range(0, w, 4):  # paper texture
+        shade = 188 + rng.randint(-6, 6)
+        draw.line([(x, 0), (x, h)], fill=(shade, shade - 2, shade - 8))
+    floor = int(h * 0.78)
+    draw.rectangle([0, floor, w, h], fill=(120, 118, 112))
+    gap_y = floor - rng.randint(4, 14)
+    draw.rectangle([0, gap_y, w, floor], fill=(28, 26, 24))
+    stud = rng.randint(200, 1000)
+    draw.rectangle([stud, 0, stud + 36, floor], fill=(175, 170, 160))
+    draw.rectangle([80, floor - 70, 560, floor - 30], fill=(236, 196, 40), outline=(40, 40, 40), width=3)
+    for i in range(0, 480, 24):
+        draw.line([(80 + i, floor - 70), (80 + i, floor - 52 if i % 120 else floor - 40)], fill=(30, 30, 30), width=2)
+    draw.rectangle([20, 20, 20 + 14 * len(label), 64], fill=(255, 255, 255))
+    draw.text((30, 30), label, fill=(20, 20, 20))
+    img = img.filter(ImageFilter.GaussianBlur(0.6))
+    exif = Image.Exif()
+    exif[0x0132] = when.strftime("%Y:%m:%d %H:%M:%S")
+    out = io.BytesIO()
+    img.save(out, "JPEG", quality=82, exif=exif.tobytes())
+    return out.getvalue()
+
+
+def _store_photo(job, wall, finding, user, purpose, data: bytes) -> Photo:
+    clean = clean_photo(data)
+    photo = Photo(job=job, wall=wall, finding=finding, purpose=purpose, captured_at=clean.captured_at,
+                  width=clean.width, height=clean.height,
+                  bytes=len(clean.image), sha256=clean.sha256, received_sha256=clean.received_sha256,
+                  original_format=clean.original_format, uploaded_by=user)
+    photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
+    photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
+    photo.save()
+    return photo
+
+
+def _point(wall: Wall, fragment: str) -> SealPoint | None:
+    for point in wall.seal_points.all():
+        if fragment in point.template_key:
+            return point
+    return None
+
+
+@transaction.atomic
+def load_demo(photos: bool = True) -> tuple[Job, bool]:
+    """Create the demo job once; return (job, created). Running it again changes nothing."""
+    users = _users()
+    existing = Job.objects.filter(name=JOB_NAME).first()
+    if existing is not None:
+        return existing, False
+    job = Job.objects.create(name=JOB_NAME, address="418 Quarry Lane, Millbrook (fictional)", units="metric",
+                             rating_scheme="stc", rule_set="Project specification: STC 50 between units, "
+                                                          "STC 55 at the lift shaft (demo)")
+    for username, _first, _last, role, trade in PEOPLE:
+        Member.objects.create(job=job, user=users[username], role=role, trade=trade)
+    types = {}
+    for spec in WALL_TYPES:
+        tl, rating = resolve_wall_type_curve(tl=[], tl_source="predicted", layers=spec["layers"], rating_scheme="stc")
+        types[spec["code"]] = WallType.objects.create(job=job, tl=tl, design_rating=rating, tl_source="predicted",
+                                                      rating_scheme="stc", **spec)
+    inspector = users["inspector"]
+    rng = random.Random(2026)
+    start = datetime(2026, 11, 16, 8, 30, tzinfo=timezone.utc)
+    walls = []
+    for level in ("2", "3", "4"):
+        for i in range(1, 6):
+            code = "W2" if i in (2, 4) else "W1"
+            walls.append(Wall.objects.create(
+                job=job, wall_type=types[code], tag=f"{level}-D{i}", level=level,
+                location=f"between unit {level}0{i} and {level}0{i + 1}",
+                face_a_label=f"Unit {level}0{i}", face_b_label=f"Unit {level}0{i + 1}",
+                length_m=round(rng.uniform(6.5, 9.5), 2), height_m=2.74, target_rating=50, rating_scheme="stc"))
+        for side, units_ in (("N", "01–03"), ("S", "04–06")):
+            walls.append(Wall.objects.create(
+                job=job, wall_type=types["W3"], tag=f"{level}-C{side}", level=level,
+                location=f"corridor wall at units {level}{units_[:2]}–{level}{units_[-2:]}",
+                face_a_label="Corridor", face_b_label=f"Units {level}{units_}",
+                length_m=18.0, height_m=2.74, target_rating=50, rating_scheme="stc"))
+        walls.append(Wall.objects.create(
+            job=job, wall_type=types["W4"], tag=f"{level}-L1", level=level,
+            location=f"lift shaft beside unit {level}06", face_a_label="Lift shaft", face_b_label=f"Unit {level}06",
+            length_m=2.6, height_m=2.74, target_rating=55, rating_scheme="stc"))
+    for wall in walls:
+        wall.add_template_seal_points()
+        Event.record(job, inspector, "wall.created", wall, {"tag": wall.tag})
+        if "-C" in wall.tag:
+            for n in range(3):
+                door = Opening.objects.create(wall=wall, kind="door", label=f"Entry door {n + 1}", width_m=0.91,
+                                              height_m=2.13, rating=30, fire_rated=True)
+                Event.record(job, inspector, "opening.created", door, {"wall": wall.tag})
+            wall.add_door_seal_points()
+
+    made = 0
+    photo_budget = 14 if photos else 0
+    for n, wall in enumerate(walls):
+        count = rng.choice((1, 2, 2, 3)) if wall.level != "4" else rng.randint(0, 2)
+        patterns = [DOOR_PATTERN] if "-C" in wall.tag and n % 2 == 0 else []
+        patterns += rng.sample(FINDING_PATTERNS, k=count)
+        for kind, frag, face, trade, geometry, note in patterns:
+            if wall.wall_type.construction == "masonry" and kind in ("missing_insulation",):
+                continue
+            point = _point(wall, frag)
+            moment = start + timedelta(minutes=17 * made)
+            finding = Finding.objects.create(
+                job=job, wall=wall, seal_point=point, kind=kind, face=face, trade=trade, note=note,
+                created_by=inspector, device_time=moment, at_edge=frag in ("bottom", "head"),
+                **{k: v for k, v in geometry.items()},
+            )
+            Event.record(job, inspector, "finding.created", finding, {"wall": wall.tag, "kind": kind, "trade": trade},
+                         device_at=moment, device_id="demo-phone-1")
+            if point is not None:
+                point.status = SealStatus.DEFECT
+                point.save(update_fields=["status"])
+            if photo_budget > 0:
+                photo_budget -= 1
+                _store_photo(job, wall, finding, inspector, PhotoPurpose.DEFECT,
+                             demo_photo(made, f"{wall.tag} {kind}", moment))
+            made += 1
+            # A third of the early findings are already fixed, some of those verified.
+            if made % 3 == 0 and wall.level == "2":
+                finding.mark_fixed(users[trade] if trade in users else inspector, "Sealed and tooled.")
+                if made % 2 == 0:
+                    finding.verify(inspector, "Checked on site.")
+    # Level 2 is walked: every other seal point passes.
+    for point in SealPoint.objects.filter(wall__job=job, wall__level="2", status=SealStatus.UNCHECKED):
+        point.status = SealStatus.PASS
+        point.save(update_fields=["status"])
+    assert Finding.objects.filter(job=job).count() == made
+    assert Finding.objects.filter(job=job, status=FindingStatus.OPEN).exists()
+    return job, True

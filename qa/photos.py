@@ -1,0 +1,124 @@
+"""Photo intake: verify the file is an image, orient it, strip location, keep the capture time, thumbnail it.
+
+The walk downscales photos on the phone and sends a plain JPEG with no metadata; such a file is
+kept byte for byte (so a resumed upload can be checked against what the device sent). Anything
+else (EXIF with GPS or an orientation tag, PNG, HEIC, oversize, trailing data) is stored as a
+freshly encoded JPEG made from decoded pixels, so nothing the device sent survives but the
+pixels, their orientation and the capture time.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import io
+from dataclasses import dataclass
+from datetime import datetime, timezone
+
+from django.conf import settings
+from PIL import Image, ImageOps, UnidentifiedImageError
+
+ACCEPTED_FORMATS = {"JPEG", "PNG", "HEIF", "WEBP"}
+EXIF_DATETIME_ORIGINAL = 0x9003
+EXIF_OFFSET_TIME_ORIGINAL = 0x9011
+EXIF_IFD = 0x8769
+
+
+class PhotoError(ValueError):
+    """The upload is not an acceptable photo; the message says which rule it broke."""
+
+
+@dataclass(frozen=True)
+class CleanPhoto:
+    image: bytes
+    thumbnail: bytes
+    width: int
+    height: int
+    captured_at: datetime | None
+    original_format: str
+    received_sha256: str
+    sha256: str
+
+
+def _capture_time(exif: Image.Exif) -> datetime | None:
+    sub = exif.get_ifd(EXIF_IFD)
+    raw = sub.get(EXIF_DATETIME_ORIGINAL) or exif.get(0x0132)
+    if not raw:
+        return None
+    try:
+        moment = datetime.strptime(str(raw).strip("\x00 "), "%Y:%m:%d %H:%M:%S")
+    except ValueError:
+        return None
+    offset = sub.get(EXIF_OFFSET_TIME_ORIGINAL)
+    if offset:
+        try:
+            return datetime.strptime(f"{moment:%Y-%m-%d %H:%M:%S} {offset}", "%Y-%m-%d %H:%M:%S %z")
+        except ValueError:
+            pass
+    # Phones without an offset tag record local time; we keep it, marked as UTC-naive converted.
+    return moment.replace(tzinfo=timezone.utc)
+
+
+def clean_photo(data: bytes) -> CleanPhoto:
+    """Validate and re-encode an uploaded photo.
+
+    Raises
+    ------
+    PhotoError
+        Too large, not an image, an unsupported format, truncated, or too many pixels.
+    """
+    if len(data) == 0:
+        raise PhotoError("image: the file is empty")
+    if len(data) > settings.PHOTO_MAX_BYTES:
+        raise PhotoError(f"image: the file is larger than {settings.PHOTO_MAX_BYTES // (1024 * 1024)} MB")
+    received = hashlib.sha256(data).hexdigest()
+    Image.MAX_IMAGE_PIXELS = settings.PHOTO_MAX_PIXELS
+    try:
+        with Image.open(io.BytesIO(data)) as probe:
+            fmt = probe.format or ""
+            if fmt not in ACCEPTED_FORMATS:
+                raise PhotoError(f"image: {fmt or 'this'} format is not accepted; send JPEG, PNG, HEIC or WebP")
+            if probe.width * probe.height > settings.PHOTO_MAX_PIXELS:
+                raise PhotoError("image: too many pixels (limit 50 megapixels)")
+            probe.verify()
+        with Image.open(io.BytesIO(data)) as img:
+            exif = img.getexif()
+            captured = _capture_time(exif)
+            img.load()
+            oriented = ImageOps.exif_transpose(img)  # HEIF is already oriented on decode; this is then a no-op
+            rgb = oriented.convert("RGB")
+    except PhotoError:
+        raise
+    except Image.DecompressionBombError:
+        raise PhotoError("image: too many pixels (limit 50 megapixels)") from None
+    except (UnidentifiedImageError, OSError, SyntaxError, ValueError) as exc:
+        raise PhotoError(f"image: not a readable image ({exc.__class__.__name__})") from None
+
+    keep_as_sent = (
+        fmt == "JPEG"
+        and len(exif) == 0
+        and max(img.width, img.height) <= settings.PHOTO_LONG_EDGE
+        and data.rstrip(b"\x00").endswith(b"\xff\xd9")
+        and img.mode in ("RGB", "L")
+    )
+    rgb.thumbnail((settings.PHOTO_LONG_EDGE, settings.PHOTO_LONG_EDGE), Image.Resampling.LANCZOS)
+    kept = Image.Exif()
+    if captured is not None:
+        # Only the capture time goes back in: no GPS, no maker notes, no serial numbers.
+        kept[0x0132] = captured.strftime("%Y:%m:%d %H:%M:%S")
+    out = io.BytesIO()
+    rgb.save(out, "JPEG", quality=85, optimize=True, exif=kept.tobytes())
+    thumb = rgb.copy()
+    thumb.thumbnail((settings.PHOTO_THUMB_EDGE, settings.PHOTO_THUMB_EDGE), Image.Resampling.LANCZOS)
+    tout = io.BytesIO()
+    thumb.save(tout, "JPEG", quality=75)
+    image_bytes = data if keep_as_sent else out.getvalue()
+    return CleanPhoto(
+        image=image_bytes,
+        thumbnail=tout.getvalue(),
+        width=rgb.width,
+        height=rgb.height,
+        captured_at=captured,
+        original_format=fmt,
+        received_sha256=received,
+        sha256=hashlib.sha256(image_bytes).hexdigest(),
+    )

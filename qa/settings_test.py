@@ -1,0 +1,13 @@
+"""Test settings: plain static storage, because the live test server serves static files
+from the finders, which do not know the hashed names of the manifest storage."""
+
+import os
+
+os.environ.setdefault("DJANGO_ALLOW_ASYNC_UNSAFE", "true")  # Playwright's sync API shares the test thread
+
+from .settings import *  # noqa: E402,F403
+from .settings import STORAGES  # noqa: E402
+
+STORAGES = {**STORAGES, "staticfiles": {"BACKEND": "django.contrib.staticfiles.storage.StaticFilesStorage"}}
+PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]  # fast user creation in fixtures
+CACHES = {"default": {"BACKEND": "django.core.cache.backends.locmem.LocMemCache"}}

@@ -1,0 +1,1 @@
+"""Signal hooks. Leak-audit cache invalidation lives with the adapter (qa/impact.py)."""

@@ -1,0 +1,55 @@
+"""Units for input and display. Everything is stored in SI; each job picks metric or imperial.
+
+Three quantities: ``size`` (wall and opening dimensions: m or ft), ``gap`` (gap widths, lengths,
+diameters, depths: mm or in) and ``area`` (affected areas: m² or ft²).
+"""
+
+from __future__ import annotations
+
+from .choices import Units
+
+FOOT = 0.3048  # m, exact (international foot, 1959)
+INCH = 0.0254  # m, exact
+
+FACTORS = {
+    Units.METRIC: {"size": 1.0, "gap": 1e-3, "area": 1.0},
+    Units.IMPERIAL: {"size": FOOT, "gap": INCH, "area": FOOT**2},
+}
+SYMBOLS = {
+    Units.METRIC: {"size": "m", "gap": "mm", "area": "m²"},
+    Units.IMPERIAL: {"size": "ft", "gap": "in", "area": "ft²"},
+}
+
+#: Which quantity each stored SI field is.
+FIELD_QUANTITY = {
+    "length_m": "gap",
+    "width_m": "gap",
+    "diameter_m": "gap",
+    "depth_m": "gap",
+    "area_m2": "area",
+}
+
+
+def to_si(value: float, quantity: str, units: str) -> float:
+    return value * FACTORS[units][quantity]
+
+
+def from_si(value: float | None, quantity: str, units: str) -> float | None:
+    if value is None:
+        return None
+    return value / FACTORS[units][quantity]
+
+
+def symbol(quantity: str, units: str) -> str:
+    return SYMBOLS[units][quantity]
+
+
+def fmt(value: float | None, quantity: str, units: str, digits: int | None = None) -> str:
+    """Human display, e.g. '6 mm', '0.25 in', '3.05 m'."""
+    if value is None:
+        return "—"
+    shown = from_si(value, quantity, units)
+    if digits is None:
+        digits = 2 if abs(shown) < 10 else 1 if abs(shown) < 100 else 0
+    text = f"{shown:.{digits}f}".rstrip("0").rstrip(".") if digits else f"{shown:.0f}"
+    return f"{text} {symbol(quantity, units)}"

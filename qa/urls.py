@@ -1,0 +1,29 @@
+"""Site routes. Pages are namespaced ``qa:``; the API lives under /api/."""
+
+from __future__ import annotations
+
+from django.contrib import admin
+from django.contrib.auth import views as auth_views
+from django.urls import include, path
+
+from .api import photo_views
+from .views import pages
+
+qa_patterns = [
+    path("", pages.job_list, name="job-list"),
+    path("login/", pages.LoginView.as_view(), name="login"),
+    path("logout/", auth_views.LogoutView.as_view(), name="logout"),
+    path("jobs/<int:job_pk>/", pages.job_page, name="job"),
+    path("jobs/<int:job_pk>/walls/<int:wall_pk>/", pages.wall_page, name="wall"),
+    path(
+        "jobs/<int:job_pk>/photos/<uuid:photo_id>/<str:kind>",
+        photo_views.photo_file,
+        name="photo-file",
+    ),
+]
+
+urlpatterns = [
+    path("", include((qa_patterns, "qa"))),
+    path("api/", include(("qa.api.urls", "api"))),
+    path("admin/", admin.site.urls),
+]
