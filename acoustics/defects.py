@@ -76,8 +76,9 @@ def _two_leaf(asm: Assembly, what: str) -> None:
         raise GeometryError(f"{what} needs a two-leaf (cavity) wall")
 
 
-def _replaced(intact: Assembly, defective: Assembly, affected: float, kind: str, label: str,
-              flags: tuple[str, ...] = ()) -> Leak:
+def _replaced(
+    intact: Assembly, defective: Assembly, affected: float, kind: str, label: str, flags: tuple[str, ...] = ()
+) -> Leak:
     """Leak for an area ``affected`` m^2 rebuilt as ``defective``."""
     d = predict(replace(defective, area=intact.area, perimeter_gap=0.0)).tau
     i = predict(replace(intact, perimeter_gap=0.0)).tau
@@ -106,15 +107,21 @@ def one_face_gap(spec: dict[str, Any] | Assembly, face: int, gap: Leak, *, label
     if face not in (0, 1):
         raise GeometryError(f"face must be 0 or 1, got {face!r}")
     if len(asm.leaves) == 1:  # a single-leaf wall has no other face: the gap goes through
-        return Leak.added(gap.area, kind="through_gap", label=label, flags=(*gap.flags, "single_leaf_through"))
+        return Leak.added(
+            gap.area, kind="through_gap", label=label, flags=(*gap.flags, "single_leaf_through")
+        )
     f = sub_band_frequencies(POINTS)
     extra = [np.zeros(gap.area.shape), np.zeros(gap.area.shape)]
     extra[face] = gap.area / asm.area
     base = _paths(asm, f)
     hit = _paths(asm, f, (extra[0], extra[1]))
     d_tau = (hit["cavity"] + hit["bridge"] - base["cavity"] - base["bridge"]).mean(axis=-1)
-    return Leak.added(np.maximum(asm.area * d_tau, 0.0), kind="one_face_gap", label=label,
-                      flags=(*gap.flags, "one_face_heuristic"))
+    return Leak.added(
+        np.maximum(asm.area * d_tau, 0.0),
+        kind="one_face_gap",
+        label=label,
+        flags=(*gap.flags, "one_face_heuristic"),
+    )
 
 
 def channel_short_circuit(spec: dict[str, Any] | Assembly, fraction: float, *, label: str = "") -> Leak:
@@ -131,8 +138,9 @@ def channel_short_circuit(spec: dict[str, Any] | Assembly, fraction: float, *, l
     return _replaced(asm, short, fraction * asm.area, "channel_short_circuit", label)
 
 
-def insulation_defect(spec: dict[str, Any] | Assembly, area: float, *, remaining_thickness: float = 0.0,
-                      label: str = "") -> Leak:
+def insulation_defect(
+    spec: dict[str, Any] | Assembly, area: float, *, remaining_thickness: float = 0.0, label: str = ""
+) -> Leak:
     """Batt missing (remaining_thickness 0) or compressed to ``remaining_thickness`` m over ``area`` m^2."""
     asm = _asm(spec)
     _two_leaf(asm, "insulation_defect")
@@ -147,8 +155,9 @@ def insulation_defect(spec: dict[str, Any] | Assembly, area: float, *, remaining
     return _replaced(asm, bad, a, kind, label)
 
 
-def rigid_bridge(spec: dict[str, Any] | Assembly, *, length: float = 0.0, points: int = 0,
-                 label: str = "") -> Leak:
+def rigid_bridge(
+    spec: dict[str, Any] | Assembly, *, length: float = 0.0, points: int = 0, label: str = ""
+) -> Leak:
     """Rigid line bridge of ``length`` m and/or ``points`` rigid ties between the two leaves.
 
     Notes
@@ -169,8 +178,15 @@ def rigid_bridge(spec: dict[str, Any] | Assembly, *, length: float = 0.0, points
     return Leak.added(added, kind="bridge", label=label)
 
 
-def back_to_back_boxes(spec: dict[str, Any] | Assembly, *, box_area: float = 0.0065, count: int = 1,
-                       box_mass: float = 6.0, separation: float = 0.02, label: str = "") -> Leak:
+def back_to_back_boxes(
+    spec: dict[str, Any] | Assembly,
+    *,
+    box_area: float = 0.0065,
+    count: int = 1,
+    box_mass: float = 6.0,
+    separation: float = 0.02,
+    label: str = "",
+) -> Leak:
     """Back-to-back boxes without offset: over the box footprint the wall is two box backs on a thin gap.
 
     Parameters
@@ -192,11 +208,13 @@ def back_to_back_boxes(spec: dict[str, Any] | Assembly, *, box_area: float = 0.0
         raise GeometryError(f"count must be a whole number >= 1, got {count!r}")
     _area(box_area, "box_area", asm.area)
     from .materials import get_material
+
     steel = get_material("steel_1", 0.001 * box_mass / 7.6) if box_mass > 0 else None
     if steel is None or separation <= 0:
         raise GeometryError("box_mass and separation must be > 0")
-    box = replace(asm, leaves=(Leaf((steel,)), Leaf((steel,))), cavity=Cavity(separation),
-                  connection=Connection("none"))
+    box = replace(
+        asm, leaves=(Leaf((steel,)), Leaf((steel,))), cavity=Cavity(separation), connection=Connection("none")
+    )
     return _replaced(asm, box, box_area * count, "back_to_back_boxes", label, ("through_path",))
 
 
@@ -207,11 +225,14 @@ def missing_layer(spec: dict[str, Any] | Assembly, face: int, area: float, *, la
         raise GeometryError(f"face must be 0..{len(asm.leaves) - 1}, got {face!r}")
     leaf = asm.leaves[face]
     if len(leaf.layers) < 2:
-        raise GeometryError("missing_layer needs a face with two or more layers (one layer missing is a hole)")
+        raise GeometryError(
+            "missing_layer needs a face with two or more layers (one layer missing is a hole)"
+        )
     leaves = list(asm.leaves)
     leaves[face] = replace(leaf, layers=leaf.layers[:-1])
-    return _replaced(asm, replace(asm, leaves=tuple(leaves)), _area(area, "area", asm.area), "missing_layer",
-                     label)
+    return _replaced(
+        asm, replace(asm, leaves=tuple(leaves)), _area(area, "area", asm.area), "missing_layer", label
+    )
 
 
 def one_face_gap_from_lab(tl: Any, gap: Leak, *, label: str = "") -> Leak:
@@ -223,5 +244,9 @@ def one_face_gap_from_lab(tl: Any, gap: Leak, *, label: str = "") -> Leak:
     tl = np.asarray(tl, float)
     if tl.shape != gap.area.shape or not np.all(np.isfinite(tl)):
         raise GeometryError("tl must be a finite (21,) curve over BANDS")
-    return Leak.added(gap.area * np.sqrt(10 ** (-tl / 10)), kind="one_face_gap", label=label,
-                      flags=(*gap.flags, "one_face_lab_fallback"))
+    return Leak.added(
+        gap.area * np.sqrt(10 ** (-tl / 10)),
+        kind="one_face_gap",
+        label=label,
+        flags=(*gap.flags, "one_face_lab_fallback"),
+    )

@@ -122,54 +122,153 @@ class Material:
     def with_thickness(self, thickness: float) -> Material:
         """The same homogeneous material at another thickness (m ~ h, fc ~ 1/h)."""
         if not self.scalable:
-            raise GeometryError(f"material {self.key!r} is a product of fixed thickness; thickness cannot be changed")
+            raise GeometryError(
+                f"material {self.key!r} is a product of fixed thickness; thickness cannot be changed"
+            )
         if not np.isfinite(thickness) or not 0.0003 <= thickness <= 1.0:
             raise GeometryError(f"thickness of {self.key!r} must be 0.0003-1.0 m, got {thickness!r}")
         ratio = thickness / self.thickness
-        return replace(self, thickness=float(thickness), surface_density=self.surface_density * ratio,
-                       fc=self.fc / ratio)
+        return replace(
+            self, thickness=float(thickness), surface_density=self.surface_density * ratio, fc=self.fc / ratio
+        )
 
 
-_GYP_FC = "fc from h*fc = 35.8 m Hz (gypsum board, c_L 1810 m/s; Hopkins Table A2 [TR]), inside the GA-235-10 EI range"
+_GYP_FC = (
+    "fc from h*fc = 35.8 m Hz (gypsum board, c_L 1810 m/s; Hopkins Table A2 [TR]), "
+    "inside the GA-235-10 EI range"
+)
 _GYP_ETA = "eta 0.03 including screw-fixing losses (from memory; board alone 0.01-0.03)"
 
-MATERIALS: dict[str, Material] = {m.key: m for m in (
-    Material("gypsum_12.7", "gypsum board 12.7 mm (1/2 in), regular", 0.0127, 8.5, 2819.0, 0.03,
-             source=f"m 8.5 kg/m^2 (from memory, 1.7-1.8 lb/ft^2); {_GYP_FC}; {_GYP_ETA}"),
-    Material("gypsum_12.7_x", "gypsum board 12.7 mm (1/2 in), fire-rated Type X", 0.0127, 9.8, 2819.0, 0.03,
-             source=f"m 9.8 kg/m^2 (from memory, about 2.0 lb/ft^2); {_GYP_FC}; {_GYP_ETA}"),
-    Material("gypsum_15.9", "gypsum board 15.9 mm (5/8 in), regular", 0.0159, 10.3, 2252.0, 0.03,
-             source=f"m 10.3 kg/m^2 (from memory); {_GYP_FC}; {_GYP_ETA}"),
-    Material("gypsum_15.9_x", "gypsum board 15.9 mm (5/8 in), fire-rated Type X", 0.0159, 10.9, 2252.0, 0.03,
-             source=f"m 10.9 kg/m^2 (from memory, as in check case C20); {_GYP_FC}; {_GYP_ETA}"),
-    Material("damped_gypsum_12.7", "damped laminated gypsum board 12.7 mm (two sheets, viscoelastic core)",
-             0.0127, 11.0, 5600.0, 0.20,
-             source="all from memory: m 11 kg/m^2; the faces bend nearly independently above a few hundred Hz, "
-                    "so fc is that of one 6.35 mm sheet (2 x 2819 Hz); eta 0.2 from the constrained core"),
-    Material("plywood_12", "plywood 12 mm", 0.012, 6.84, 1400.0, 0.02, scalable=True,
-             source="m 0.57 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 16.8 m Hz (Hopkins Table A2 [TR]); "
-                    "eta 0.02 (from memory)"),
-    Material("osb_11", "oriented strand board 11.1 mm (7/16 in)", 0.0111, 6.9, 1800.0, 0.02, scalable=True,
-             source="all from memory: density 620 kg/m^3, h*fc about 20 m Hz, eta 0.02"),
-    Material("concrete_150", "cast-in-place normal-weight concrete 150 mm", 0.150, 342.0, 114.0, 0.005,
-             edge_losses=True, scalable=True,
-             source="m 2.28 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 17.1 m Hz (Hopkins Table A2 [TR]); "
-                    "eta_int 0.005 (ISO 12354-1 Annex L [TR])"),
-    Material("cmu_190", "hollow dense-aggregate concrete block 190 mm (8 in nominal), ungrouted, faces sealed",
-             0.190, 210.0, 107.0, 0.01, edge_losses=True,
-             source="m 210 kg/m^2 (from memory, about 43 lb/ft^2 with mortar and paint); h*fc 20.3 m Hz "
-                    "(dense block, Hopkins Table A2 [TR]) applied to the full block depth; eta_int 0.01 "
-                    "(from memory)"),
-    Material("calcium_silicate_200", "calcium silicate masonry 200 mm (1800 kg/m^3)", 0.200, 360.0, 128.4, 0.010,
-             edge_losses=True, scalable=True,
-             source="ISO 12354-1 Annex L [TR]: 1800 kg/m^3, c_L 2500 m/s -> fc 128.4 Hz, eta_int 0.010"),
-    Material("glass_6", "float glass 6 mm", 0.006, 14.82, 2083.0, 0.005, scalable=True,
-             source="m 2.47 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 12.5 m Hz (Hopkins Table A2 [TR]); "
-                    "eta 0.005 mounted (from memory)"),
-    Material("steel_1", "steel sheet 1.0 mm", 0.001, 7.6, 12300.0, 0.005, scalable=True,
-             source="m 7.6 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 12.3 m Hz (Hopkins Table A2 [TR]); "
-                    "eta 0.005 mounted (from memory)"),
-)}
+MATERIALS: dict[str, Material] = {
+    m.key: m
+    for m in (
+        Material(
+            "gypsum_12.7",
+            "gypsum board 12.7 mm (1/2 in), regular",
+            0.0127,
+            8.5,
+            2819.0,
+            0.03,
+            source=f"m 8.5 kg/m^2 (from memory, 1.7-1.8 lb/ft^2); {_GYP_FC}; {_GYP_ETA}",
+        ),
+        Material(
+            "gypsum_12.7_x",
+            "gypsum board 12.7 mm (1/2 in), fire-rated Type X",
+            0.0127,
+            9.8,
+            2819.0,
+            0.03,
+            source=f"m 9.8 kg/m^2 (from memory, about 2.0 lb/ft^2); {_GYP_FC}; {_GYP_ETA}",
+        ),
+        Material(
+            "gypsum_15.9",
+            "gypsum board 15.9 mm (5/8 in), regular",
+            0.0159,
+            10.3,
+            2252.0,
+            0.03,
+            source=f"m 10.3 kg/m^2 (from memory); {_GYP_FC}; {_GYP_ETA}",
+        ),
+        Material(
+            "gypsum_15.9_x",
+            "gypsum board 15.9 mm (5/8 in), fire-rated Type X",
+            0.0159,
+            10.9,
+            2252.0,
+            0.03,
+            source=f"m 10.9 kg/m^2 (from memory, as in check case C20); {_GYP_FC}; {_GYP_ETA}",
+        ),
+        Material(
+            "damped_gypsum_12.7",
+            "damped laminated gypsum board 12.7 mm (two sheets, viscoelastic core)",
+            0.0127,
+            11.0,
+            5600.0,
+            0.20,
+            source="all from memory: m 11 kg/m^2; the faces bend nearly independently above a few "
+            "hundred Hz, "
+            "so fc is that of one 6.35 mm sheet (2 x 2819 Hz); eta 0.2 from the constrained core",
+        ),
+        Material(
+            "plywood_12",
+            "plywood 12 mm",
+            0.012,
+            6.84,
+            1400.0,
+            0.02,
+            scalable=True,
+            source="m 0.57 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 16.8 m Hz (Hopkins Table A2 [TR]); "
+            "eta 0.02 (from memory)",
+        ),
+        Material(
+            "osb_11",
+            "oriented strand board 11.1 mm (7/16 in)",
+            0.0111,
+            6.9,
+            1800.0,
+            0.02,
+            scalable=True,
+            source="all from memory: density 620 kg/m^3, h*fc about 20 m Hz, eta 0.02",
+        ),
+        Material(
+            "concrete_150",
+            "cast-in-place normal-weight concrete 150 mm",
+            0.150,
+            342.0,
+            114.0,
+            0.005,
+            edge_losses=True,
+            scalable=True,
+            source="m 2.28 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 17.1 m Hz (Hopkins Table A2 [TR]); "
+            "eta_int 0.005 (ISO 12354-1 Annex L [TR])",
+        ),
+        Material(
+            "cmu_190",
+            "hollow dense-aggregate concrete block 190 mm (8 in nominal), ungrouted, faces sealed",
+            0.190,
+            210.0,
+            107.0,
+            0.01,
+            edge_losses=True,
+            source="m 210 kg/m^2 (from memory, about 43 lb/ft^2 with mortar and paint); h*fc 20.3 m Hz "
+            "(dense block, Hopkins Table A2 [TR]) applied to the full block depth; eta_int 0.01 "
+            "(from memory)",
+        ),
+        Material(
+            "calcium_silicate_200",
+            "calcium silicate masonry 200 mm (1800 kg/m^3)",
+            0.200,
+            360.0,
+            128.4,
+            0.010,
+            edge_losses=True,
+            scalable=True,
+            source="ISO 12354-1 Annex L [TR]: 1800 kg/m^3, c_L 2500 m/s -> fc 128.4 Hz, eta_int 0.010",
+        ),
+        Material(
+            "glass_6",
+            "float glass 6 mm",
+            0.006,
+            14.82,
+            2083.0,
+            0.005,
+            scalable=True,
+            source="m 2.47 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 12.5 m Hz (Hopkins Table A2 [TR]); "
+            "eta 0.005 mounted (from memory)",
+        ),
+        Material(
+            "steel_1",
+            "steel sheet 1.0 mm",
+            0.001,
+            7.6,
+            12300.0,
+            0.005,
+            scalable=True,
+            source="m 7.6 kg/m^2 per mm (Norton Table 3.1 [TR]); h*fc 12.3 m Hz (Hopkins Table A2 [TR]); "
+            "eta 0.005 mounted (from memory)",
+        ),
+    )
+}
 
 
 def get_material(key: str, thickness: float | None = None) -> Material:

@@ -83,10 +83,21 @@ from .errors import AcousticsError
 from .materials import Material, get_material
 
 __all__ = [
-    "WallSpecError", "Leaf", "Cavity", "Connection", "Assembly", "Prediction",
-    "mass_law", "finite_size_tau", "single_leaf_tl", "resonance_frequency", "cavity_absorption",
+    "WallSpecError",
+    "Leaf",
+    "Cavity",
+    "Connection",
+    "Assembly",
+    "Prediction",
+    "mass_law",
+    "finite_size_tau",
+    "single_leaf_tl",
+    "resonance_frequency",
+    "cavity_absorption",
     "cavity_path_tl",
-    "predict", "predict_tl", "CONNECTION_TYPES",
+    "predict",
+    "predict_tl",
+    "CONNECTION_TYPES",
 ]
 
 #: Field-incidence correction for one-third-octave bands, dB (Bies Eq. 7.42 [TR]).
@@ -170,8 +181,9 @@ def _limp_tau(f: np.ndarray, m: float, area: float | None, c0: float, rho0: floa
     return tau
 
 
-def single_leaf_tl(f: Any, m: float, fc: float, eta: Any, *, area: float | None = None,
-                   c0: float = C0, rho0: float = RHO0) -> np.ndarray:
+def single_leaf_tl(
+    f: Any, m: float, fc: float, eta: Any, *, area: float | None = None, c0: float = C0, rho0: float = RHO0
+) -> np.ndarray:
     """TL of a single leaf by Sharp's method as given by Bies (Section 7.2.4.1), dB.
 
     Parameters
@@ -198,7 +210,9 @@ def single_leaf_tl(f: Any, m: float, fc: float, eta: Any, *, area: float | None 
     lo = -10 * np.log10(_limp_tau(f, m, area, c0, rho0))
 
     def above(ff: np.ndarray, ee: np.ndarray) -> np.ndarray:
-        return mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(2 * ee * ff / (np.pi * fc))
+        return mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(
+            2 * ee * ff / (np.pi * fc)
+        )
 
     tl = np.where(f <= fc / 2, lo, np.minimum(above(f, eta), lo))
     mid = (f > fc / 2) & (f < fc)
@@ -255,8 +269,10 @@ class Leaf:
         return single_leaf_tl(f, self.m, self.fc, self.eta(f), area=area)
 
     def to_dict(self) -> dict[str, Any]:
-        return {"layers": [{"material": x.key, "thickness": x.thickness} for x in self.layers],
-                "loss_factor": self.loss_factor}
+        return {
+            "layers": [{"material": x.key, "thickness": x.thickness} for x in self.layers],
+            "loss_factor": self.loss_factor,
+        }
 
 
 @dataclass(frozen=True)
@@ -334,18 +350,32 @@ class Assembly:
     def to_dict(self) -> dict[str, Any]:
         """The normalised spec (round-trips through :meth:`from_dict`)."""
         c = self.connection
-        out: dict[str, Any] = {"area": self.area, "height": self.height,
-                               "leaves": [lf.to_dict() for lf in self.leaves]}
+        out: dict[str, Any] = {
+            "area": self.area,
+            "height": self.height,
+            "leaves": [lf.to_dict() for lf in self.leaves],
+        }
         if self.cavity:
-            out["cavity"] = {"depth": self.cavity.depth, "absorber": {
-                "thickness": self.cavity.absorber_thickness, "flow_resistivity": self.cavity.flow_resistivity}}
+            out["cavity"] = {
+                "depth": self.cavity.depth,
+                "absorber": {
+                    "thickness": self.cavity.absorber_thickness,
+                    "flow_resistivity": self.cavity.flow_resistivity,
+                },
+            }
         conn: dict[str, Any] = {"type": c.type, "spacing": c.spacing, "stiffness": c.stiffness}
         if c.channel_leaf is not None:
-            conn["resilient_channel"] = {"leaf": c.channel_leaf, "spacing": c.channel_spacing,
-                                         "stiffness": c.channel_stiffness}
+            conn["resilient_channel"] = {
+                "leaf": c.channel_leaf,
+                "spacing": c.channel_spacing,
+                "stiffness": c.channel_stiffness,
+            }
         out["connection"] = conn
-        out["sealing"] = ({"perimeter": "unsealed", "gap_width": self.perimeter_gap} if self.perimeter_gap
-                          else {"perimeter": "sealed"})
+        out["sealing"] = (
+            {"perimeter": "unsealed", "gap_width": self.perimeter_gap}
+            if self.perimeter_gap
+            else {"perimeter": "sealed"}
+        )
         return out
 
 
@@ -388,15 +418,30 @@ def _connection(raw: dict, n_leaves: int) -> Connection:
     if not isinstance(rc, dict) or rc.get("leaf") not in (0, 1) or n_leaves != 2:
         raise WallSpecError("connection.resilient_channel needs 'leaf': 0 or 1 on a two-leaf wall")
     if kind not in ("wood_stud", "steel_stud", "furring"):
-        raise WallSpecError("connection.resilient_channel needs studs or furring (wood_stud, steel_stud, furring)")
-    return Connection(kind, spacing, stiffness, int(rc["leaf"]),
-                      _num(rc, "spacing", 0.61, 0.2, 1.5, "resilient_channel"),
-                      _num(rc, "stiffness", CHANNEL_STIFFNESS, 1e3, 1e9, "resilient_channel"))
+        raise WallSpecError(
+            "connection.resilient_channel needs studs or furring (wood_stud, steel_stud, furring)"
+        )
+    return Connection(
+        kind,
+        spacing,
+        stiffness,
+        int(rc["leaf"]),
+        _num(rc, "spacing", 0.61, 0.2, 1.5, "resilient_channel"),
+        _num(rc, "stiffness", CHANNEL_STIFFNESS, 1e3, 1e9, "resilient_channel"),
+    )
 
 
 # ---------------------------------------------------------------- double leaf physics
-def resonance_frequency(m1: float, m2: float, depth: float, *, fill_thickness: float = 0.0,
-                        spring_per_area: float = 0.0, c0: float = C0, rho0: float = RHO0) -> float:
+def resonance_frequency(
+    m1: float,
+    m2: float,
+    depth: float,
+    *,
+    fill_thickness: float = 0.0,
+    spring_per_area: float = 0.0,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> float:
     """Mass-air-mass resonance f0, Hz.
 
     Notes
@@ -413,7 +458,8 @@ def cavity_absorption(f: Any, cavity: Cavity, *, c0: float = C0, rho0: float = R
 
     Notes
     -----
-    Fill: Z = -j zeta cot(k_c t) (Delany-Bazley k_c, zeta), alpha = 1 - |(Z - 1)/(Z + 1)|^2 (normal incidence).
+    Fill: Z = -j zeta cot(k_c t) (Delany-Bazley k_c, zeta),
+    alpha = 1 - |(Z - 1)/(Z + 1)|^2 (normal incidence).
     """
     f = np.asarray(f, float)
     bare = np.interp(np.log10(f), np.log10(_BARE_ALPHA[0]), _BARE_ALPHA[1])
@@ -426,8 +472,9 @@ def cavity_absorption(f: Any, cavity: Cavity, *, c0: float = C0, rho0: float = R
     return np.maximum(bare, alpha)
 
 
-def cavity_path_tl(f: Any, tl1: Any, tl2: Any, tl_m: Any, f0: float, depth: float, alpha: Any = None,
-                   *, c0: float = C0) -> np.ndarray:
+def cavity_path_tl(
+    f: Any, tl1: Any, tl2: Any, tl_m: Any, f0: float, depth: float, alpha: Any = None, *, c0: float = C0
+) -> np.ndarray:
     """TL of the cavity path of a double leaf (Sharp, as given by Bies Eq. 7.64), dB.
 
     Parameters
@@ -520,8 +567,10 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
     """tau of every path at frequencies f; ``extra`` adds (21,)-band tau to each leaf (one-face leaks)."""
     S = asm.area
     leaf_tau = [10 ** (-lf.tl(f, S) / 10) for lf in asm.leaves]
-    leaf_tau = [t + np.asarray(e, float).reshape(-1, *([1] * (f.ndim - 1))) if np.ndim(e) else t + e
-                for t, e in zip(leaf_tau, extra)]
+    leaf_tau = [
+        t + np.asarray(e, float).reshape(-1, *([1] * (f.ndim - 1))) if np.ndim(e) else t + e
+        for t, e in zip(leaf_tau, extra, strict=True)
+    ]
     out: dict[str, Any] = {"leaf_tau": leaf_tau}
     if len(asm.leaves) == 1:
         out["cavity"] = leaf_tau[0]
@@ -531,15 +580,31 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
     a, b = asm.leaves
     d = _depth(asm)
     cav = asm.cavity
-    f0 = resonance_frequency(a.m, b.m, d, fill_thickness=cav.absorber_thickness,
-                             spring_per_area=_spring_per_area(asm.connection))
+    f0 = resonance_frequency(
+        a.m, b.m, d, fill_thickness=cav.absorber_thickness, spring_per_area=_spring_per_area(asm.connection)
+    )
     fl = C0 / (2 * np.pi * d)
     tau_m = _limp_tau(f, a.m + b.m, S, C0, RHO0)
-    tcav = 10 ** (-cavity_path_tl(f, -10 * np.log10(leaf_tau[0]), -10 * np.log10(leaf_tau[1]),
-                                  -10 * np.log10(tau_m), f0, d, cavity_absorption(f, cav)) / 10)
+    tcav = 10 ** (
+        -cavity_path_tl(
+            f,
+            -10 * np.log10(leaf_tau[0]),
+            -10 * np.log10(leaf_tau[1]),
+            -10 * np.log10(tau_m),
+            f0,
+            d,
+            cavity_absorption(f, cav),
+        )
+        / 10
+    )
     limp = [_limp_tau(f, lf.m, S, C0, RHO0) for lf in asm.leaves]
-    dip = np.mean([np.maximum(0, -10 * np.log10(lm) + 10 * np.log10(lt)) for lm, lt in
-                   zip(limp, [10 ** (-lf.tl(f, S) / 10) for lf in asm.leaves])], axis=0)
+    dip = np.mean(
+        [
+            np.maximum(0, -10 * np.log10(lm) + 10 * np.log10(lt))
+            for lm, lt in zip(limp, [10 ** (-lf.tl(f, S) / 10) for lf in asm.leaves], strict=True)
+        ],
+        axis=0,
+    )
     out.update(cavity=tcav, bridge=_bridge_tau(asm, f, tau_m, dip), f0=f0, f_l=fl)
     return out
 
@@ -605,8 +670,18 @@ def predict(spec: dict[str, Any] | Assembly) -> Prediction:
         if asm.cavity.absorber_thickness == 0:
             flags.append("cavity_empty")
     bridge = _band(p["bridge"])
-    return Prediction(_tl(tau), tau, tuple(_tl(_band(t)) for t in p["leaf_tau"]), _tl(_band(p["cavity"])),
-                      _tl(bridge), p["f0"], p["f_l"], tuple(lf.fc for lf in asm.leaves), tuple(flags), asm)
+    return Prediction(
+        _tl(tau),
+        tau,
+        tuple(_tl(_band(t)) for t in p["leaf_tau"]),
+        _tl(_band(p["cavity"])),
+        _tl(bridge),
+        p["f0"],
+        p["f_l"],
+        tuple(lf.fc for lf in asm.leaves),
+        tuple(flags),
+        asm,
+    )
 
 
 def predict_tl(layers_spec: dict[str, Any]) -> tuple[np.ndarray, tuple[str, ...]]:

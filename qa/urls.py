@@ -22,6 +22,11 @@ qa_patterns = [
     ),
 ]
 
+qa_patterns += [
+    path("", include("qa.views.walk_urls")),
+    path("", include("qa.views.audit_urls")),
+]
+
 urlpatterns = [
     path("", include((qa_patterns, "qa"))),
     path("api/", include(("qa.api.urls", "api"))),

@@ -1,0 +1,5 @@
+"""Routes of the walk (the offline phone app) and its sync endpoints."""
+
+from __future__ import annotations
+
+urlpatterns: list = []
