@@ -40,6 +40,9 @@ __all__ = [
 ]
 
 from .field import (
+    dnt_from_r_prime,
+    energy_sum_index,
+    flanking_path_index,
     apparent_r,
     apparent_tl,
     astc,
@@ -71,6 +74,9 @@ from .ratings import rating_weights, round_half_away
 from .bands import averaging_frequencies
 
 __all__ += [
+    "dnt_from_r_prime",
+    "energy_sum_index",
+    "flanking_path_index",
     "apparent_r",
     "apparent_tl",
     "astc",

@@ -18,6 +18,8 @@ References
    (NIC, NNIC, ASTC).
 .. [2] ISO 16283-1:2014 Formulas for D, R', DnT (as transcribed); Dn with A0 = 10 m^2
    from memory; rated by ISO 717-1:2020.
+.. [3] EN 12354-1:2000, Formula (26) and Annex H.3 (simplified flanking model), as
+   transcribed; Vigran, T. E. (2008) *Building Acoustics*, Eq. 9.47.
 """
 
 from __future__ import annotations
@@ -42,6 +44,9 @@ __all__ = [
     "r_prime_w",
     "dnt_w",
     "dn_w",
+    "flanking_path_index",
+    "energy_sum_index",
+    "dnt_from_r_prime",
 ]
 
 
@@ -139,3 +144,40 @@ def dnt_w(d: Any, t: Any, *, decimal: bool = False) -> RwResult:
 def dn_w(d: Any, *, a: Any = None, volume: Any = None, t: Any = None, decimal: bool = False) -> RwResult:
     """Weighted normalized level difference Dn,w (with C, Ctr): ISO 717-1 rating of Dn."""
     return rw(normalized_level_difference(d, a=a, volume=volume, t=t), decimal=decimal, _label="Dn,w")
+
+
+def flanking_path_index(r_i: Any, r_j: Any, k_ij: Any, area: float, length: float) -> np.ndarray:
+    """Flanking-path index R_ij = (R_i + R_j)/2 + K_ij + 10 lg(S_s / (l0 l_ij)), dB (l0 = 1 m).
+
+    Parameters
+    ----------
+    r_i, r_j : float or array_like
+        Indices of the two elements of the path (weighted or per band), dB.
+    k_ij : float or array_like
+        Vibration reduction index of the junction, dB.
+    area : float
+        Separating-element area S_s, m^2.
+    length : float
+        Junction length l_ij, m.
+
+    References
+    ----------
+    .. [1] EN 12354-1:2000, simplified method; Vigran (2008) Eq. 9.47.
+    """
+    s = _positive(area, "area", "m^2")
+    lf = _positive(length, "length", "m")
+    return (np.asarray(r_i, float) + np.asarray(r_j, float)) / 2.0 + np.asarray(k_ij, float) + 10.0 * np.log10(
+        s / lf)
+
+
+def energy_sum_index(indices: Any, axis: int = 0) -> np.ndarray:
+    """Apparent index of parallel paths, R' = -10 lg sum_p 10^(-R_p/10), dB (EN 12354-1 Formula (26))."""
+    r = np.asarray(indices, dtype=float)
+    return -10.0 * np.log10(np.sum(10.0 ** (-r / 10.0), axis=axis))
+
+
+def dnt_from_r_prime(r_prime: Any, volume: float, area: float) -> np.ndarray:
+    """DnT = R' + 10 lg(0.32 V / S), dB (EN/ISO 12354-1 Formula 5b; 0.32 = 0.16 / 0.5 s)."""
+    v = _positive(volume, "volume", "m^3")
+    s = _positive(area, "area", "m^2")
+    return np.asarray(r_prime, float) + 10.0 * np.log10(SABINE_ISO / T0_ISO * v / s)

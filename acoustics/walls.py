@@ -569,7 +569,7 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
     leaf_tau = [10 ** (-lf.tl(f, S) / 10) for lf in asm.leaves]
     leaf_tau = [
         t + np.asarray(e, float).reshape(-1, *([1] * (f.ndim - 1))) if np.ndim(e) else t + e
-        for t, e in zip(leaf_tau, extra, strict=True)
+        for t, e in zip(leaf_tau, extra[: len(leaf_tau)], strict=True)
     ]
     out: dict[str, Any] = {"leaf_tau": leaf_tau}
     if len(asm.leaves) == 1:

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import hashlib
 import io
+import warnings
 from dataclasses import dataclass
 from datetime import datetime, timezone
 
@@ -58,6 +59,10 @@ def _capture_time(exif: Image.Exif) -> datetime | None:
     return moment.replace(tzinfo=timezone.utc)
 
 
+def _size(n: int) -> str:
+    return f"{n / (1024 * 1024):g} MB" if n >= 1024 * 1024 else f"{n / 1024:g} KB"
+
+
 def clean_photo(data: bytes) -> CleanPhoto:
     """Validate and re-encode an uploaded photo.
 
@@ -69,27 +74,33 @@ def clean_photo(data: bytes) -> CleanPhoto:
     if len(data) == 0:
         raise PhotoError("image: the file is empty")
     if len(data) > settings.PHOTO_MAX_BYTES:
-        raise PhotoError(f"image: the file is larger than {settings.PHOTO_MAX_BYTES // (1024 * 1024)} MB")
+        raise PhotoError(f"image: the file is larger than {_size(settings.PHOTO_MAX_BYTES)}")
     received = hashlib.sha256(data).hexdigest()
     Image.MAX_IMAGE_PIXELS = settings.PHOTO_MAX_PIXELS
+    limit_mp = f"{settings.PHOTO_MAX_PIXELS / 1e6:g} megapixels"
     try:
-        with Image.open(io.BytesIO(data)) as probe:
-            fmt = probe.format or ""
-            if fmt not in ACCEPTED_FORMATS:
-                raise PhotoError(f"image: {fmt or 'this'} format is not accepted; send JPEG, PNG, HEIC or WebP")
-            if probe.width * probe.height > settings.PHOTO_MAX_PIXELS:
-                raise PhotoError("image: too many pixels (limit 50 megapixels)")
-            probe.verify()
-        with Image.open(io.BytesIO(data)) as img:
-            exif = img.getexif()
-            captured = _capture_time(exif)
-            img.load()
-            oriented = ImageOps.exif_transpose(img)  # HEIF is already oriented on decode; this is then a no-op
-            rgb = oriented.convert("RGB")
+        with warnings.catch_warnings():
+            # Between the limit and twice it Pillow only warns; here a warning is a refusal.
+            warnings.simplefilter("error", Image.DecompressionBombWarning)
+            with Image.open(io.BytesIO(data)) as probe:
+                fmt = probe.format or ""
+                if fmt not in ACCEPTED_FORMATS:
+                    raise PhotoError(
+                        f"image: {fmt or 'this'} format is not accepted; send JPEG, PNG, HEIC or WebP"
+                    )
+                if probe.width * probe.height > settings.PHOTO_MAX_PIXELS:
+                    raise PhotoError(f"image: too many pixels (limit {limit_mp})")
+                probe.verify()
+            with Image.open(io.BytesIO(data)) as img:
+                exif = img.getexif()
+                captured = _capture_time(exif)
+                img.load()
+                oriented = ImageOps.exif_transpose(img)  # HEIF is already oriented on decode: then a no-op
+                rgb = oriented.convert("RGB")
     except PhotoError:
         raise
-    except Image.DecompressionBombError:
-        raise PhotoError("image: too many pixels (limit 50 megapixels)") from None
+    except (Image.DecompressionBombError, Image.DecompressionBombWarning):
+        raise PhotoError(f"image: too many pixels (limit {limit_mp})") from None
     except (UnidentifiedImageError, OSError, SyntaxError, ValueError) as exc:
         raise PhotoError(f"image: not a readable image ({exc.__class__.__name__})") from None
 

@@ -10,7 +10,7 @@ from .. import units
 
 
 class FiniteFloatField(serializers.FloatField):
-    """A float that refuses NaN, infinities and absurd magnitudes with a message naming the rule."""
+    """A float that refuses NaN, infinities, booleans and absurd magnitudes with a message naming the rule."""
 
     default_error_messages = {
         "not_finite": "must be a finite number",
@@ -21,8 +21,8 @@ class FiniteFloatField(serializers.FloatField):
         self.limit = limit
         super().__init__(**kwargs)
 
-    def to_internal_value(self, data):
-        if isinstance(data, bool):
+    def to_internal_value(self, data) -> float:
+        if isinstance(data, bool):  # float(True) == 1.0 would pass silently
             self.fail("invalid")
         value = super().to_internal_value(data)
         if not math.isfinite(value):
@@ -36,22 +36,36 @@ class UnitField(FiniteFloatField):
     """A quantity in the job's units on the wire, SI inside.
 
     The job comes from the serializer context (``context["job"]``); the source attribute is
-    the SI model field, e.g. ``UnitField("gap", source="width_m")``.
+    the SI model field, e.g. ``UnitField("gap", source="width_m")``. ``min_value`` and
+    ``max_value`` are SI bounds; a value outside them is refused with the bound shown in the
+    job's units (an imperial user must not read "at least 0.1" about a length typed in feet).
     """
+
+    default_error_messages = {
+        "below": "must be at least {bound}",
+        "above": "must be at most {bound}",
+    }
 
     def __init__(self, quantity: str, **kwargs):
         self.quantity = quantity
+        # Taken out of DRF's hands: its validators would compare SI values but print bare numbers.
+        self.min_si = kwargs.pop("min_value", None)
+        self.max_si = kwargs.pop("max_value", None)
         kwargs.setdefault("limit", 1e5)
         super().__init__(**kwargs)
 
     def _units(self) -> str:
         return self.context["job"].units
 
-    def to_internal_value(self, data):
-        value = super().to_internal_value(data)
-        return units.to_si(value, self.quantity, self._units())
+    def to_internal_value(self, data) -> float:
+        value = units.to_si(super().to_internal_value(data), self.quantity, self._units())
+        if self.min_si is not None and value < self.min_si:
+            self.fail("below", bound=units.fmt(self.min_si, self.quantity, self._units(), digits=3))
+        if self.max_si is not None and value > self.max_si:
+            self.fail("above", bound=units.fmt(self.max_si, self.quantity, self._units(), digits=3))
+        return value
 
-    def to_representation(self, value):
+    def to_representation(self, value) -> float | None:
         if value is None:
             return None
         return round(units.from_si(value, self.quantity, self._units()), 6)

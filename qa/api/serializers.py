@@ -21,7 +21,8 @@ class CurveField(serializers.ListField):
     """A TL curve: 21 values in dB on the bands 50–5000 Hz, null where a band was not measured."""
 
     def __init__(self, **kwargs):
-        kwargs.setdefault("child", serializers.FloatField(allow_null=True))
+        # Finite floats only: a boolean or NaN band is a client bug, not a measurement.
+        kwargs.setdefault("child", FiniteFloatField(allow_null=True, limit=1e3))
         kwargs.setdefault("allow_empty", True)
         kwargs.setdefault("required", False)
         super().__init__(**kwargs)
@@ -82,6 +83,8 @@ class MemberSerializer(serializers.ModelSerializer):
             raise serializers.ValidationError({"trade": ["only crew members have a trade"]})
         job = self.context["job"]
         user = attrs.get("user")
+        if user and self.instance is not None and user != self.instance.user:
+            raise serializers.ValidationError({"username": ["cannot be changed; add a new member instead"]})
         if user and self.instance is None and Member.objects.filter(job=job, user=user).exists():
             raise serializers.ValidationError({"username": ["is already a member of this job"]})
         return attrs
@@ -89,7 +92,8 @@ class MemberSerializer(serializers.ModelSerializer):
 
 class WallTypeSerializer(serializers.ModelSerializer):
     tl = CurveField()
-    thickness = UnitField("gap", source="thickness_m")
+    # 20 mm (a single board) to 1 m; the depth of every through-gap is taken from it.
+    thickness = UnitField("gap", source="thickness_m", min_value=0.02, max_value=1.0)
 
     class Meta:
         model = WallType

@@ -1,0 +1,168 @@
+"""The job bundle: everything the walk needs to work a whole day offline, as one JSON document.
+
+Lengths of findings and seal-point defaults are in the job's units (the API's convention); wall
+and opening sizes are given in both SI and the job's units because the walk computes with them.
+The bundle carries a version (a hash of its content) that doubles as the HTTP ETag.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import math
+from typing import Any
+
+from django.core.serializers.json import DjangoJSONEncoder
+from django.db.models import Prefetch
+from django.urls import reverse
+from django.utils import timezone
+
+from . import impact, units
+from .api.serializers import FindingSerializer
+from .cautions import CAUTIONS, GENERAL_CAUTIONS
+from .choices import Face, FindingStatus, GapKind, SealStatus, Trade
+from .models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+
+BUNDLE_FORMAT = 1
+_GAP_FIELDS = {"width_m": "width", "length_m": "length", "diameter_m": "diameter", "depth_m": "depth",
+               "area_m2": "area"}
+
+
+def _plain(value: Any) -> Any:
+    """JSON-safe copy: numpy scalars and arrays become numbers and lists, NaN becomes null."""
+    if isinstance(value, dict):
+        return {str(k): _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if hasattr(value, "tolist"):
+        return _plain(value.tolist())
+    if hasattr(value, "_asdict"):
+        return _plain(value._asdict())
+    if hasattr(value, "__dataclass_fields__"):
+        from dataclasses import asdict
+
+        return _plain(asdict(value))
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    return value
+
+
+def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
+    """A seal point's default defect geometry in the job's units (slit length from ``length_fraction``)."""
+    gap = dict(point.gap or {})
+    if "length_fraction" in gap and "length_m" not in gap:
+        gap["length_m"] = gap.pop("length_fraction") * wall.length_m
+    out: dict[str, Any] = {"kind": point.gap_kind, "face": point.face, "trade": point.trade,
+                           "at_edge": point.at_edge, "count": int(gap.get("count", 1) or 1)}
+    for si, name in _GAP_FIELDS.items():
+        if gap.get(si) is not None:
+            out[name] = round(units.from_si(gap[si], units.FIELD_QUANTITY[si], job_units), 4)
+    if point.gap_kind == GapKind.BRIDGE:
+        out["face"] = Face.THROUGH
+    return out
+
+
+def _audits(job: Job) -> dict | None:
+    """Last leak audits per wall from qa.impact, when that module provides them."""
+    if hasattr(impact, "audits_for_job"):
+        audits = impact.audits_for_job(job)
+        if isinstance(audits, dict):
+            return {str(k): _plain(v) for k, v in audits.items()}
+        return {str(a.get("wall") if isinstance(a, dict) else i): _plain(a) for i, a in enumerate(audits or [])}
+    if hasattr(impact, "audit_summary"):
+        return {str(w.id): _plain(impact.audit_summary(w))
+                for w in Wall.objects.live().filter(job=job).select_related("wall_type")}
+    return None
+
+
+def build_bundle(job: Job, member: Member) -> dict:
+    """The walk's offline copy of ``job`` for ``member`` (crew see their own trade's findings only)."""
+    u = job.units
+    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
+    wall_by_id = {w.id: w for w in walls}
+    points = SealPoint.objects.filter(wall__job=job, wall__removed=False, removed=False).order_by(
+        "wall_id", "position", "id")
+    findings = (
+        Finding.objects.live().filter(job=job).select_related("created_by")
+        .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
+    )
+    if member.is_crew:
+        findings = findings.filter(trade=member.trade)
+    photos = Photo.objects.filter(job=job, removed=False).only(
+        "id", "wall_id", "finding_id", "purpose", "width", "height", "bytes", "sha256", "captured_at")
+    if member.is_crew:
+        photos = photos.filter(finding__trade=member.trade)
+    audits = _audits(job)
+
+    body = {
+        "format": BUNDLE_FORMAT,
+        "job": {"id": job.id, "name": job.name, "address": job.address, "units": u,
+                "rating_scheme": job.rating_scheme, "rule_set": job.rule_set,
+                "symbols": {q: units.symbol(q, u) for q in ("size", "gap", "area")}},
+        "me": {"username": member.user.username, "name": member.user.get_full_name() or member.user.username,
+               "role": member.role, "trade": member.trade or None},
+        "members": [
+            {"username": m.user.username, "name": m.user.get_full_name() or m.user.username, "role": m.role,
+             "trade": m.trade or None}
+            for m in Member.objects.filter(job=job, active=True).select_related("user").order_by("id")
+        ],
+        "choices": {
+            "gap_kinds": [[v, label] for v, label in GapKind.choices],
+            "faces": [[v, label] for v, label in Face.choices],
+            "trades": [[v, label] for v, label in Trade.choices],
+            "seal_status": [[v, label] for v, label in SealStatus.choices],
+            "finding_status": [[v, label] for v, label in FindingStatus.choices],
+        },
+        "cautions": {k: {"title": c.title, "text": c.text} for k, c in CAUTIONS.items()},
+        "general_cautions": list(GENERAL_CAUTIONS),
+        "wall_types": [
+            {"id": t.id, "code": t.code, "name": t.name, "construction": t.construction,
+             "design_rating": t.design_rating, "rating_scheme": t.rating_scheme, "fire_rated": t.fire_rated,
+             "thickness": round(units.from_si(t.thickness_m, "gap", u), 3)}
+            for t in WallType.objects.filter(job=job)
+        ],
+        "walls": [
+            {"id": w.id, "tag": w.tag, "level": w.level, "location": w.location, "wall_type": w.wall_type_id,
+             "face_a_label": w.face_a_label, "face_b_label": w.face_b_label,
+             "length": round(units.from_si(w.length_m, "size", u), 3),
+             "height": round(units.from_si(w.height_m, "size", u), 3),
+             "target_rating": w.target_rating, "rating_scheme": w.rating_scheme, "version": w.version,
+             "fire_rated": w.wall_type.fire_rated,
+             "url": reverse("qa:wall", kwargs={"job_pk": job.id, "wall_pk": w.id})}
+            for w in walls
+        ],
+        "openings": [
+            {"id": o.id, "wall": o.wall_id, "kind": o.kind, "label": o.label,
+             "width": round(units.from_si(o.width_m, "size", u), 3),
+             "height": round(units.from_si(o.height_m, "size", u), 3), "rating": o.rating,
+             "fire_rated": o.fire_rated}
+            for o in Opening.objects.filter(wall__job=job, wall__removed=False, removed=False)
+        ],
+        "seal_points": [
+            {"id": p.id, "wall": p.wall_id, "label": p.label, "face": p.face, "trade": p.trade,
+             "correct": p.correct, "usual_defect": p.usual_defect, "caution": p.caution, "status": p.status,
+             "version": p.version, "position": p.position, "prefill": prefill(p, wall_by_id[p.wall_id], u)}
+            for p in points
+        ],
+        "findings": [dict(d) for d in FindingSerializer(findings, many=True, context={"job": job}).data],
+        "photos": [
+            {"id": str(p.id), "wall": p.wall_id, "finding": p.finding_id, "purpose": p.purpose,
+             "width": p.width, "height": p.height, "bytes": p.bytes, "sha256": p.sha256,
+             "thumbnail_url": reverse("qa:photo-file", kwargs={"job_pk": job.id, "photo_id": p.id,
+                                                                "kind": "thumb"})}
+            for p in photos
+        ],
+        "conflicts": [],
+    }
+    if member.is_inspector:
+        from .sync import conflict_data
+
+        open_conflicts = Conflict.objects.filter(finding__job=job, resolution="").select_related(
+            "finding", "created_by")
+        body["conflicts"] = [conflict_data(c, job) for c in open_conflicts]
+    if audits is not None:
+        body["audits"] = audits
+    text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":"))
+    body["version"] = hashlib.sha256(text.encode()).hexdigest()[:20]
+    body["generated_at"] = timezone.now().isoformat()
+    return body
