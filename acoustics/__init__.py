@@ -39,15 +39,17 @@ __all__ = [
     "tl_with_added_area",
 ]
 
+from .audit import Audit, audit
+from .bands import averaging_frequencies
 from .field import (
-    dnt_from_r_prime,
-    energy_sum_index,
-    flanking_path_index,
     apparent_r,
     apparent_tl,
     astc,
     dn_w,
+    dnt_from_r_prime,
     dnt_w,
+    energy_sum_index,
+    flanking_path_index,
     nic,
     nnic,
     normalized_level_difference,
@@ -69,9 +71,7 @@ from .leaks import (
     skin_gap,
     slit,
 )
-from .audit import Audit, audit
-from .ratings import rating_weights, round_half_away
-from .bands import averaging_frequencies
+from .ratings import rating_weights, round_half_up
 
 __all__ += [
     "dnt_from_r_prime",
@@ -103,7 +103,7 @@ __all__ += [
     "Audit",
     "audit",
     "rating_weights",
-    "round_half_away",
+    "round_half_up",
     "averaging_frequencies",
 ]
 

@@ -63,8 +63,9 @@ def slit_end_correction(K: Any) -> np.ndarray:
     return (np.log(8.0 / np.asarray(K, dtype=float)) - EULER_GAMMA) / np.pi
 
 
-def gomperts_slit_tau(f: Any, width: float, depth: float, *, incidence: str = "diffuse",
-                      edge: bool = False, c0: float = C0) -> np.ndarray:
+def gomperts_slit_tau(
+    f: Any, width: float, depth: float, *, incidence: str = "diffuse", edge: bool = False, c0: float = C0
+) -> np.ndarray:
     """Transmission coefficient of a long straight slit (Gomperts, as given by Hopkins Eq. 4.99).
 
     Parameters
@@ -157,8 +158,10 @@ def wilson_soroka_tau(f: Any, radius: float, depth: float, *, c0: float = C0) ->
     z = piston_impedance(k * radius)
     r0, x0 = z.real, z.imag
     kd = k * depth
-    den = 4.0 * r0**2 * (np.cos(kd) - x0 * np.sin(kd)) ** 2 + (
-        (r0**2 - x0**2 + 1.0) * np.sin(kd) + 2.0 * x0 * np.cos(kd)) ** 2
+    den = (
+        4.0 * r0**2 * (np.cos(kd) - x0 * np.sin(kd)) ** 2
+        + ((r0**2 - x0**2 + 1.0) * np.sin(kd) + 2.0 * x0 * np.cos(kd)) ** 2
+    )
     return 4.0 * r0 / den
 
 
@@ -168,8 +171,9 @@ def strip_impedance(K: Any) -> np.ndarray:
     return K / 2.0 + 1j * K * slit_end_correction(K)
 
 
-def delany_bazley(f: Any, flow_resistivity: float, *, rho0: float = RHO0, c0: float = C0
-                  ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+def delany_bazley(
+    f: Any, flow_resistivity: float, *, rho0: float = RHO0, c0: float = C0
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """Equivalent-fluid wavenumber and normalised impedance of a fibrous fill (Delany-Bazley).
 
     Parameters
@@ -200,9 +204,17 @@ def delany_bazley(f: Any, flow_resistivity: float, *, rho0: float = RHO0, c0: fl
     return kc, zeta, X
 
 
-def slit_viscothermal(f: Any, width: float, *, rho0: float = RHO0, c0: float = C0, mu: float = MU,
-                      prandtl: float = PRANDTL, gamma: float = GAMMA, p0: float = P0
-                      ) -> tuple[np.ndarray, np.ndarray]:
+def slit_viscothermal(
+    f: Any,
+    width: float,
+    *,
+    rho0: float = RHO0,
+    c0: float = C0,
+    mu: float = MU,
+    prandtl: float = PRANDTL,
+    gamma: float = GAMMA,
+    p0: float = P0,
+) -> tuple[np.ndarray, np.ndarray]:
     """Wavenumber and normalised impedance of air in a narrow slit with visco-thermal losses.
 
     Notes
@@ -243,8 +255,12 @@ def chain(*mats: Matrix) -> Matrix:
     """Product of chain matrices, source side first."""
     a11, a12, a21, a22 = mats[0]
     for b11, b12, b21, b22 in mats[1:]:
-        a11, a12, a21, a22 = (a11 * b11 + a12 * b21, a11 * b12 + a12 * b22,
-                              a21 * b11 + a22 * b21, a21 * b12 + a22 * b22)
+        a11, a12, a21, a22 = (
+            a11 * b11 + a12 * b21,
+            a11 * b12 + a12 * b22,
+            a21 * b11 + a22 * b21,
+            a21 * b12 + a22 * b22,
+        )
     return a11, a12, a21, a22
 
 

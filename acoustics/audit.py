@@ -131,8 +131,9 @@ def _leak_matrix(leaks: Sequence[Any]) -> tuple[np.ndarray, list[Leak]]:
     return np.stack([lk.area for lk in out]), out
 
 
-def audit(tl: Any, area: float, leaks: Sequence[Leak], rating: str = "stc",
-          target: int | None = None) -> Audit:
+def audit(
+    tl: Any, area: float, leaks: Sequence[Leak], rating: str = "stc", target: int | None = None
+) -> Audit:
     """Cost of each finding on a wall's rating and the fix-first order.
 
     Parameters
@@ -201,14 +202,27 @@ def audit(tl: Any, area: float, leaks: Sequence[Leak], rating: str = "stc",
         target = int(target)
     designed = int(rate(tl, rating))  # validates the rated bands (RatingError names the band)
     amat, leak_objs = _leak_matrix(leaks)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return _run(tl, s, amat, leak_objs, rating, target, designed)
+
+
+def _run(
+    tl: np.ndarray,
+    s: float,
+    amat: np.ndarray,
+    leak_objs: list[Leak],
+    rating: str,
+    target: int | None,
+    designed: int,
+) -> Audit:
     n = amat.shape[0]
     rater = _block_rater(rating)
     weights = rating_weights(rating)
+    inv_s = 1.0 / s
 
     base = s * 10.0 ** (-tl / 10.0)
     total = base + amat.sum(axis=0)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        as_found_tl = -10.0 * np.log10(total / s)
+    as_found_tl = -10.0 * np.log10(total * inv_s)
     as_found = designed if n == 0 else int(rater(as_found_tl[None, :])[0])
 
     wpow = np.nan_to_num(amat) @ weights
@@ -221,33 +235,32 @@ def audit(tl: Any, area: float, leaks: Sequence[Leak], rating: str = "stc",
     if n == 1:
         gain = np.array([designed - as_found])
     elif n:
-        with np.errstate(divide="ignore", invalid="ignore"):
-            tl_minus = -10.0 * np.log10((total - amat) / s)
-        gain = rater(tl_minus).astype(np.int64) - as_found
+        gain = rater(-10.0 * np.log10((total - amat) * inv_s)).astype(np.int64) - as_found
     else:
         gain = np.zeros(0, dtype=np.int64)
 
     order: list[int] = []
     after = np.empty(n, dtype=np.int64)
     after_tl = np.empty((n, N_BANDS))
-    remaining = list(range(n))
+    alive = np.ones(n, dtype=bool)
+    left = total.copy()
     for step in range(n):
-        if len(remaining) == 1:
-            best = remaining[0]
+        rem = np.flatnonzero(alive)
+        if rem.size == 1:
+            best = int(rem[0])
             after[step], after_tl[step] = designed, tl
         else:
-            rem = np.asarray(remaining)
-            sub = amat[rem]
-            left = base + sub.sum(axis=0)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                cand_tl = -10.0 * np.log10((left - sub) / s)
+            cand_tl = np.log10((left - amat[rem]) * inv_s)
+            cand_tl *= -10.0
             r = rater(cand_tl)
-            # Highest rating, then most weighted power, then lowest index (lexsort: last key first).
-            pick = np.lexsort((rem, -wpow[rem], -r))[0]
+            # Highest rating, then most weighted power, then the earliest finding (argmax takes the first).
+            top = np.flatnonzero(r == r.max())
+            pick = top[np.argmax(wpow[rem[top]])] if top.size > 1 else top[0]
             best = int(rem[pick])
             after[step], after_tl[step] = int(r[pick]), cand_tl[pick]
         order.append(best)
-        remaining.remove(best)
+        alive[best] = False
+        left -= amat[best]
 
     needed: list[int] | None = None
     if target is not None:
@@ -255,7 +268,7 @@ def audit(tl: Any, area: float, leaks: Sequence[Leak], rating: str = "stc",
             needed = []
         elif designed >= target:
             k = int(np.argmax(after >= target))
-            needed = order[:k + 1]
+            needed = order[: k + 1]
 
     flags = tuple(dict.fromkeys(f for lk in leak_objs for f in lk.flags))
     return Audit(

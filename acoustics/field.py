@@ -130,8 +130,9 @@ def astc(nr: Any, area: float, *, a2: Any = None, volume: Any = None, t2: Any = 
     return stc(apparent_tl(nr, area, a2=a2, volume=volume, t2=t2), _label="ASTC")
 
 
-def r_prime_w(d: Any, area: float, *, a: Any = None, volume: Any = None, t: Any = None,
-              decimal: bool = False) -> RwResult:
+def r_prime_w(
+    d: Any, area: float, *, a: Any = None, volume: Any = None, t: Any = None, decimal: bool = False
+) -> RwResult:
     """Weighted apparent sound reduction index R'w (with C, Ctr): ISO 717-1 rating of R'."""
     return rw(apparent_r(d, area, a=a, volume=volume, t=t), decimal=decimal, _label="R'w")
 
@@ -166,8 +167,11 @@ def flanking_path_index(r_i: Any, r_j: Any, k_ij: Any, area: float, length: floa
     """
     s = _positive(area, "area", "m^2")
     lf = _positive(length, "length", "m")
-    return (np.asarray(r_i, float) + np.asarray(r_j, float)) / 2.0 + np.asarray(k_ij, float) + 10.0 * np.log10(
-        s / lf)
+    return (
+        (np.asarray(r_i, float) + np.asarray(r_j, float)) / 2.0
+        + np.asarray(k_ij, float)
+        + 10.0 * np.log10(s / lf)
+    )
 
 
 def energy_sum_index(indices: Any, axis: int = 0) -> np.ndarray:

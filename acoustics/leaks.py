@@ -59,16 +59,16 @@ SUB_BAND_POINTS = 41
 #: Meaning of each validity flag a leak may carry (shown to the user, never hidden).
 FLAG_TEXT = {
     "kw_gt_1": "gap width is not small against the wavelength at high frequencies (k w > 1); "
-               "the slit model is outside its range there",
+    "the slit model is outside its range there",
     "ka_gt_1": "hole is not small against the wavelength at high frequencies (k a > 1); "
-               "diffuse-field correction blended, about +-3 dB",
+    "diffuse-field correction blended, about +-3 dB",
     "diffuse_from_normal": "hole model is for normal incidence; diffuse field estimated as 2 x tau "
-                           "(about +-3 dB)",
+    "(about +-3 dB)",
     "short_slit": "gap shorter than a wavelength at 500 Hz; the long-slit model overstates it somewhat",
     "narrow_inviscid": "gap narrower than 1 mm modelled without viscous losses; use the crack model",
     "ring_as_slit": "ring gap modelled as a straight slit of the mean circumference",
     "fill_outside_fit": "fibre fill outside the Delany-Bazley fit range (0.01 < rho0 f / sigma < 1) "
-                        "in some bands",
+    "in some bands",
     "limp_skin_unvalidated": "limp-skin seal model is derived, with no published validation",
     "open_area_crude": "open area taken as tau = 1 (no aperture resonance or end effects)",
 }
@@ -143,8 +143,13 @@ class Leak:
     def to_dict(self) -> dict[str, Any]:
         """JSON-ready description."""
         oa = None if np.isnan(self.open_area) else float(self.open_area)
-        return {"kind": self.kind, "label": self.label, "flags": list(self.flags),
-                "open_area": oa, "area": [float(v) for v in self.area]}
+        return {
+            "kind": self.kind,
+            "label": self.label,
+            "flags": list(self.flags),
+            "open_area": oa,
+            "area": [float(v) for v in self.area],
+        }
 
 
 def added_area(area: Any, kind: str = "added", label: str = "", flags: tuple[str, ...] = ()) -> Leak:
@@ -174,8 +179,16 @@ def _slit_flags(width: float, length: float, c0: float) -> list[str]:
     return flags
 
 
-def slit(width: float, length: float, depth: float, *, edge: bool = False, label: str = "",
-         points: int = SUB_BAND_POINTS, c0: float = C0) -> Leak:
+def slit(
+    width: float,
+    length: float,
+    depth: float,
+    *,
+    edge: bool = False,
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+) -> Leak:
     """Straight slit through the assembly (Gomperts model, diffuse field).
 
     Parameters
@@ -218,8 +231,15 @@ def slit(width: float, length: float, depth: float, *, edge: bool = False, label
     return Leak(w * L * tau, kind, label, tuple(_slit_flags(w, L, c0)), w * L)
 
 
-def hole(diameter: float, depth: float, *, diffuse: str = "blend", label: str = "",
-         points: int = SUB_BAND_POINTS, c0: float = C0) -> Leak:
+def hole(
+    diameter: float,
+    depth: float,
+    *,
+    diffuse: str = "blend",
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+) -> Leak:
     """Circular hole through the assembly (Wilson-Soroka, converted to diffuse field).
 
     Parameters
@@ -263,8 +283,15 @@ def hole(diameter: float, depth: float, *, diffuse: str = "blend", label: str = 
     return Leak(s * band_average(tau, points), "hole", label, tuple(flags), s)
 
 
-def ring_gap(pipe_diameter: float, gap: float, depth: float, *, label: str = "",
-             points: int = SUB_BAND_POINTS, c0: float = C0) -> Leak:
+def ring_gap(
+    pipe_diameter: float,
+    gap: float,
+    depth: float,
+    *,
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+) -> Leak:
     """Annular gap around a pipe, duct or conduit passing through the assembly.
 
     Parameters
@@ -309,8 +336,17 @@ def _mouth(shape: str, width: float, length: float, c0: float):
     raise GeometryError(f"shape must be 'slit' or 'hole', got {shape!r}")
 
 
-def _tmm_leak(shape: str, width: float, length: float, kind: str, label: str, flags: list[str],
-              sections: Callable[[np.ndarray], ap.Matrix], points: int, c0: float) -> Leak:
+def _tmm_leak(
+    shape: str,
+    width: float,
+    length: float,
+    kind: str,
+    label: str,
+    flags: list[str],
+    sections: Callable[[np.ndarray], ap.Matrix],
+    points: int,
+    c0: float,
+) -> Leak:
     s, zr, factor = _mouth(shape, width, length, c0)
 
     def tau(f: np.ndarray) -> np.ndarray:
@@ -327,9 +363,19 @@ def _tmm_leak(shape: str, width: float, length: float, kind: str, label: str, fl
     return Leak(s * band_average(tau, points), kind, label, tuple(dict.fromkeys(flags)), s)
 
 
-def filled_gap(width: float, length: float, depth: float, *, flow_resistivity: float,
-               fill_depth: float | None = None, shape: str = "slit", label: str = "",
-               points: int = SUB_BAND_POINTS, c0: float = C0, rho0: float = RHO0) -> Leak:
+def filled_gap(
+    width: float,
+    length: float,
+    depth: float,
+    *,
+    flow_resistivity: float,
+    fill_depth: float | None = None,
+    shape: str = "slit",
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> Leak:
     """Gap fully or partly filled with fibrous material (transfer matrix, Delany-Bazley fill).
 
     Parameters
@@ -380,8 +426,18 @@ def filled_gap(width: float, length: float, depth: float, *, flow_resistivity: f
     return _tmm_leak(shape, w, L, "filled_gap", label, flags, sections, points, c0)
 
 
-def skin_gap(width: float, length: float, depth: float, *, surface_density: float, shape: str = "slit",
-             label: str = "", points: int = SUB_BAND_POINTS, c0: float = C0, rho0: float = RHO0) -> Leak:
+def skin_gap(
+    width: float,
+    length: float,
+    depth: float,
+    *,
+    surface_density: float,
+    shape: str = "slit",
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> Leak:
     """Gap closed at one face by a thin limp skin (sealant film, tape, foam skin).
 
     Parameters
@@ -413,8 +469,16 @@ def skin_gap(width: float, length: float, depth: float, *, surface_density: floa
     return _tmm_leak(shape, w, L, "skin_gap", label, ["limp_skin_unvalidated"], sections, points, c0)
 
 
-def crack(width: float, length: float, depth: float, *, label: str = "", points: int = SUB_BAND_POINTS,
-          c0: float = C0, rho0: float = RHO0) -> Leak:
+def crack(
+    width: float,
+    length: float,
+    depth: float,
+    *,
+    label: str = "",
+    points: int = SUB_BAND_POINTS,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> Leak:
     """Hairline crack (e.g. a shrinkage crack in sealant) with visco-thermal losses.
 
     Parameters

@@ -42,7 +42,7 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
-from .bands import BANDS, N_BANDS, band_slice
+from .bands import BANDS, N_BANDS
 from .errors import RatingError
 
 __all__ = [
@@ -53,7 +53,7 @@ __all__ = [
     "oitc",
     "rate",
     "contour",
-    "round_half_away",
+    "round_half_up",
     "rating_weights",
 ]
 
@@ -64,65 +64,42 @@ RATINGS = ("stc", "rw", "oitc")
 # the memory of rating millions of curves.
 _CHUNK = 16384
 
-_STC = band_slice(125, 4000)
-_RW = band_slice(100, 3150)
-_OITC = band_slice(80, 4000)
-
-# ASTM E413 contour relative to its 500 Hz value, 125-4000 Hz [1].
-_STC_SHAPE = np.array([-16, -13, -10, -7, -4, -1, 0, 1, 2, 3, 4, 4, 4, 4, 4, 4], dtype=float)
-# ISO 717-1 Table 3 reference curve relative to 52 dB at 500 Hz, 100-3150 Hz [2].
-_RW_SHAPE = np.array([33, 36, 39, 42, 45, 48, 51, 52, 53, 54, 55, 56, 56, 56, 56, 56], dtype=float) - 52.0
-
-# ISO 717-1 spectra, 50-5000 Hz (NaN = not part of that range) [2] Table 4, Table B.1.
-_NA = np.nan
-_SPEC1_100_3150 = [_NA] * 3 + [-29, -26, -23, -21, -19, -17, -15, -13, -12, -11, -10, -9, -9, -9, -9, -9] + [_NA] * 2
-_SPEC1_50_3150 = [-40, -36, -33, -29, -26, -23, -21, -19, -17, -15, -13, -12, -11, -10, -9, -9, -9, -9, -9,
-                  _NA, _NA]
-_SPEC1_ENL = [-41, -37, -34, -30, -27, -24, -22, -20, -18, -16, -14, -13, -12, -11, -10, -10, -10, -10, -10,
-              -10, -10]
-_SPEC2_100_3150 = [_NA] * 3 + [-20, -20, -18, -16, -15, -14, -13, -12, -11, -9, -8, -9, -10, -11, -13, -15] + [_NA] * 2
-_SPEC2_ENL = [-25, -23, -21, -20, -20, -18, -16, -15, -14, -13, -12, -11, -9, -8, -9, -10, -11, -13, -15, -16,
-              -18]
-
-
-def _restrict(spec: list[float], low: int, high: int) -> np.ndarray:
-    out = np.full(N_BANDS, np.nan)
-    sl = band_slice(low, high)
-    out[sl] = np.asarray(spec, dtype=float)[sl]
-    return out
-
-
-# Columns: C, Ctr, C50-3150, C50-5000, C100-5000, Ctr50-3150, Ctr50-5000, Ctr100-5000.
-_TERMS = ("c", "ctr", "c50_3150", "c50_5000", "c100_5000", "ctr50_3150", "ctr50_5000", "ctr100_5000")
-_SPECTRA = np.stack([
-    np.asarray(_SPEC1_100_3150, dtype=float),
-    np.asarray(_SPEC2_100_3150, dtype=float),
-    np.asarray(_SPEC1_50_3150, dtype=float),
-    _restrict(_SPEC1_ENL, 50, 5000),
-    _restrict(_SPEC1_ENL, 100, 5000),
-    _restrict(_SPEC2_ENL, 50, 3150),
-    _restrict(_SPEC2_ENL, 50, 5000),
-    _restrict(_SPEC2_ENL, 100, 5000),
-], axis=1)  # (21, 8)
-_SPEC_USED = np.isfinite(_SPECTRA)
-_SPEC_W = np.where(_SPEC_USED, 10.0 ** (np.nan_to_num(_SPECTRA) / 10.0), 0.0)
-_NEG_LN10_100 = -np.log(10.0) / 100.0
-_RW_TENTHS = 10.0 * _RW_SHAPE
-# C and Ctr weights over 100-3150 Hz only, (2, 16), for the fast path without enlarged terms.
-_SPEC_W_RW = np.ascontiguousarray(_SPEC_W[_RW, :2].T)
-
-# ASTM E1332 reference spectrum plus A-weighting, 80-4000 Hz [4].
-_OITC_L = np.array([102, 102, 101, 98, 97, 95, 94, 93, 93, 91, 90, 89, 89, 88, 88, 87, 85, 84], dtype=float)
-_A_WEIGHT = np.array([-22.5, -19.1, -16.1, -13.4, -10.9, -8.6, -6.6, -4.8, -3.2, -1.9, -0.8, 0.0, 0.6, 1.0,
-                      1.2, 1.3, 1.2, 1.0])
-_OITC_W = 10.0 ** ((_OITC_L + _A_WEIGHT) / 10.0)
-_OITC_TOTAL = 100.13
+from .spectra import (
+    _A_WEIGHT,
+    _K16,
+    _NEG_LN10_100,
+    _OITC,
+    _OITC_L,
+    _OITC_TOTAL,
+    _OITC_W,
+    _RW,
+    _RW_SHAPE,
+    _RW_TENTHS,
+    _SPEC1_100_3150,
+    _SPEC1_50_3150,
+    _SPEC1_ENL,
+    _SPEC2_100_3150,
+    _SPEC2_ENL,
+    _SPECTRA,
+    _SPEC_USED,
+    _SPEC_W,
+    _SPEC_W_RW,
+    _STC,
+    _STC_SHAPE,
+    _TERMS,
+)
 
 _E413 = "ASTM E413 range 125-4000 Hz"
 _ISO717 = "ISO 717-1 range 100-3150 Hz"
 _RANGE_TEXT = {
-    "STC": _E413, "NIC": _E413, "NNIC": _E413, "ASTC": _E413,
-    "Rw": _ISO717, "R'w": _ISO717, "DnT,w": _ISO717, "Dn,w": _ISO717,
+    "STC": _E413,
+    "NIC": _E413,
+    "NNIC": _E413,
+    "ASTC": _E413,
+    "Rw": _ISO717,
+    "R'w": _ISO717,
+    "DnT,w": _ISO717,
+    "Dn,w": _ISO717,
     "OITC": "ASTM E1332 range 80-4000 Hz",
 }
 
@@ -147,15 +124,17 @@ class RwResult(NamedTuple):
     ctr100_5000: Any
 
 
-def round_half_away(x: np.ndarray | float, decimals: int = 0) -> np.ndarray:
-    """Round half away from zero (common practice, no source; numpy rounds half to even).
+def round_half_up(x: np.ndarray | float, decimals: int = 0) -> np.ndarray:
+    """Round ties upwards: floor(x + 0.5) at ``decimals`` places (numpy's own rounding goes half to even).
 
-    A relative nudge of 1e-9 makes decimal ties such as 42.35 (stored as
-    42.34999...) round the way they are written.
+    Half up rather than half away from zero (the method notes' common-practice
+    suggestion) so that a uniform shift of a curve by whole decibels shifts
+    every rating by exactly as much, also for negative band values; both rules
+    agree for positive values. A nudge of 1e-7 (in units of the last place)
+    makes decimal ties such as 42.35 (stored as 42.34999...) round up as written.
     """
     scale = 10.0**decimals
-    y = np.asarray(x, dtype=float) * scale
-    y = np.trunc(y + np.copysign(0.5 + 1e-9, y))
+    y = np.floor(np.asarray(x, dtype=float) * scale + (0.5 + 1e-7))
     return y / scale if decimals else y
 
 
@@ -192,8 +171,9 @@ def _check_finite(block: np.ndarray, sl: slice, rating: str) -> None:
     )
 
 
-def _lift(v: np.ndarray, lo: np.ndarray, hi: np.ndarray, limit: int, unit: int,
-          steps: tuple[int, ...]) -> np.ndarray:
+def _lift(
+    v: np.ndarray, lo: np.ndarray, hi: np.ndarray, limit: int, unit: int, steps: tuple[int, ...]
+) -> np.ndarray:
     """Largest s in [lo, hi] with sum_i max(0, unit*s - v_i) <= limit (``lo`` must satisfy it).
 
     ``v`` (int16) has the bands on axis 0 and the curves on axis 1, so every
@@ -216,10 +196,10 @@ def _lift(v: np.ndarray, lo: np.ndarray, hi: np.ndarray, limit: int, unit: int,
 
 
 def _rounded_rows(x: np.ndarray, sl: slice, scale: float) -> np.ndarray:
-    """round_half_away(x[:, sl] * scale) as float with bands on axis 0 (contiguous rows)."""
+    """round_half_up(x[:, sl] * scale) as float with bands on axis 0 (contiguous rows)."""
     t = np.multiply(x[:, sl].T, scale, order="C")
-    t += np.copysign(0.5 + 1e-7, t)
-    return np.trunc(t, out=t)
+    t += 0.5 + 1e-7
+    return np.floor(t, out=t)
 
 
 def _relative(u: np.ndarray, cap: float) -> tuple[np.ndarray, np.ndarray]:
@@ -270,7 +250,7 @@ def _rw_value(tenths: np.ndarray, decimal: bool) -> np.ndarray:
 
 
 def _tenths(x: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
-    """Band values reduced to 0.1 dB (ISO 717-1 4.4 footnote 1), in tenths, bands on axis 0.
+    """Band values reduced to 0.1 dB (ISO 717-1 4.4 footnote 1, ties up), in tenths, bands on axis 0.
 
     Returns the (21, n) tenths and a (21, n) mask of non-finite bands (None if all finite);
     non-finite bands (allowed outside 100-3150 Hz) are set to 0 and must be masked by the caller.
@@ -313,14 +293,40 @@ def _oitc_value(x: np.ndarray) -> np.ndarray:
     return _OITC_TOTAL - 10.0 * np.log10(np.exp(x[:, _OITC] * (-np.log(10.0) / 10.0)) @ _OITC_W)
 
 
+def _closed_form(u: np.ndarray, limit: float) -> np.ndarray:
+    """Largest s with sum_i max(0, s - u_i) <= limit per row of u (rows = curves), in closed form.
+
+    With u sorted and P_k the sum of its k smallest values, the deficiency sum
+    is max_k (k s - P_k), so s* = floor(min_k (limit + P_k) / k). Few numpy
+    calls, which suits the small batches of the audit (its cost there is
+    call overhead, not arithmetic).
+    """
+    u = np.sort(u, axis=1)
+    p = np.cumsum(u, axis=1)
+    p += limit
+    p /= _K16
+    return np.floor(p.min(axis=1) + 1e-9)
+
+
+def _small_stc(x: np.ndarray) -> np.ndarray:
+    t = np.floor(x[:, _STC] + (0.5 + 1e-7)) - _STC_SHAPE
+    return np.minimum(_closed_form(t, 32.0), t.min(axis=1) + 8.0)
+
+
+def _small_rw(x: np.ndarray) -> np.ndarray:
+    # Tenths, so an unfavourable sum of exactly 32.0 dB is compared exactly; s in tenths, then whole dB.
+    t = np.floor(x[:, _RW] * 10.0 + (0.5 + 1e-7)) - _RW_TENTHS
+    return np.floor(_closed_form(t / 10.0, 32.0 + 1e-9))
+
+
 def _block_rater(rating: str):
-    """Fast integer rater of 2-D blocks without validation (for callers that validated once)."""
+    """Integer rater of small 2-D blocks (curves on axis 0) without validation (callers validated once)."""
     if rating == "stc":
-        return lambda x: _stc_block(x, True)
+        return _small_stc
     if rating == "rw":
-        return lambda x: _rw_value(_rounded_rows(x, _RW, 10.0), False)
+        return _small_rw
     if rating == "oitc":
-        return lambda x: round_half_away(_oitc_value(x))
+        return lambda x: round_half_up(_oitc_value(x))
     raise ValueError(f"rating must be one of {RATINGS}, got {rating!r}")
 
 
@@ -347,7 +353,7 @@ def rating_weights(rating: str) -> np.ndarray:
 def _blocks(arr: np.ndarray):
     flat = arr.reshape(-1, N_BANDS)
     for start in range(0, flat.shape[0], _CHUNK):
-        yield start, flat[start:start + _CHUNK]
+        yield start, flat[start : start + _CHUNK]
 
 
 def _finish(values: np.ndarray, shape: tuple[int, ...], as_int: bool) -> Any:
@@ -368,8 +374,9 @@ def stc(tl: Any, *, round_tl: bool = True, _label: str = "STC") -> Any:
         Band values in dB over :data:`acoustics.BANDS`; only 125-4000 Hz are
         read. NaN outside that range is allowed.
     round_tl : bool
-        Round each band to a whole decibel (half away from zero) before
-        rating, as ASTM practice does for E90 data. Default True.
+        Round each band to a whole decibel (ties upwards, see
+        :func:`round_half_up`) before rating, as ASTM practice does for E90
+        data. Default True.
 
     Returns
     -------
@@ -399,7 +406,7 @@ def stc(tl: Any, *, round_tl: bool = True, _label: str = "STC") -> Any:
     flat_out = out.reshape(-1)
     for start, block in _blocks(arr):
         _check_finite(block, _STC, _label)
-        flat_out[start:start + block.shape[0]] = _stc_block(block, round_tl)
+        flat_out[start : start + block.shape[0]] = _stc_block(block, round_tl)
     return _finish(out, arr.shape[:-1], True)
 
 
@@ -459,9 +466,9 @@ def rw(tl: Any, *, decimal: bool = False, enlarged: bool = True, _label: str = "
         xa_out[start:stop, :cols] = xa
     with np.errstate(invalid="ignore"):
         if decimal:
-            terms = np.round(round_half_away(xa_out, 1) - rw_out[:, None], 1)
+            terms = np.round(round_half_up(xa_out, 1) - rw_out[:, None], 1)
         else:
-            terms = round_half_away(xa_out) - rw_out[:, None]
+            terms = round_half_up(xa_out) - rw_out[:, None]
     if not lead:
         num = (lambda v: int(v)) if not decimal else (lambda v: float(v))
         vals = [num(rw_out[0])] + [None if np.isnan(v) else num(v) for v in terms[0]]
@@ -504,8 +511,8 @@ def oitc(tl: Any, *, decimal: bool = False, _label: str = "OITC") -> Any:
     flat_out = out.reshape(-1)
     for start, block in _blocks(arr):
         _check_finite(block, _OITC, _label)
-        flat_out[start:start + block.shape[0]] = _oitc_value(block)
-    out = round_half_away(out, 1 if decimal else 0)
+        flat_out[start : start + block.shape[0]] = _oitc_value(block)
+    out = round_half_up(out, 1 if decimal else 0)
     return _finish(out, arr.shape[:-1], not decimal)
 
 

@@ -8,30 +8,8 @@ material's loss factor, or ``loss_factor`` on a leaf) and **sealing** (the
 perimeter). Use :func:`predict` for the full result (per-leaf TL, cavity and
 stud paths, f0, f_l) and :func:`predict_tl` for the web app's (21,) curve.
 
-Spec format (JSON-like; :meth:`Assembly.from_dict`)::
-
-    {
-      "area": 10.0,            # m^2, wall area S (finite-size correction); default 10 (ISO lab opening)
-      "height": 2.7,           # m, default 2.7 (staggered studs couple through the two plate lines)
-      "leaves": [              # face A first, then face B; one leaf = single-leaf wall
-        {"layers": ["gypsum_15.9_x"]},
-        {"layers": [{"material": "gypsum_15.9_x", "count": 2}], "loss_factor": 0.05}
-      ],
-      "cavity": {"depth": 0.092,                      # m, stud depth (channel depth is added)
-                 "absorber": {"thickness": 0.089,     # m, porous fill (0 or absent = empty)
-                              "flow_resistivity": 10000}},   # Pa s/m^2
-      "connection": {"type": "wood_stud",             # none | wood_stud | steel_stud | staggered_studs
-                                                      # | double_studs | furring | points
-                     "spacing": 0.406,                # m, stud/furring centres or point grid
-                     "stiffness": null,               # N/m per m (lines) or N/m per point; null = rigid
-                     "resilient_channel": {"leaf": 1, "spacing": 0.61, "stiffness": 1.5e5}},
-      "sealing": {"perimeter": "sealed"}              # or {"perimeter": "unsealed", "gap_width": 0.003}
-    }
-
-A layer is a material key of :data:`acoustics.materials.MATERIALS` or a dict
-``{"material": key, "thickness": m, "count": n}``. Layers of one leaf are
-screwed, not glued: masses and bending stiffnesses add (fc of the stack stays
-that of its stiffest sheet for identical sheets).
+Spec format: see :mod:`acoustics.assembly` (``Assembly.from_dict``); the names defined there
+(``Assembly``, ``Leaf``, ``Cavity``, ``Connection``, ``WallSpecError``, ...) are re-exported here.
 
 Notes
 -----
@@ -50,6 +28,15 @@ cavity; a poorly absorbing cavity is limited by a diffuse-cavity energy
 balance tau >= tau1 tau2 / (4 alpha) (derived; equal to Sharp's top branch
 at alpha = 1), alpha the larger of the bare-cavity absorption and the fill's
 absorption (Delany-Bazley, rigidly backed layer).
+
+Resonance of the cavity path (derived; Sharp's TL_M below f0 has no dip): below f_l the cavity
+path is max(Sharp, tau_M R(f)), R the diffuse-field transmission of two limp leaves on the damped
+cavity over that of one leaf of mass m1 + m2 (:func:`resonance_factor`, a transfer-matrix model of
+the mass-air-mass system of Bies Eq. 7.62 / Hopkins Eq. 4.72 with its damping kept). The cavity's
+own loss is eta = alpha / (2 k d) (:func:`cavity_loss_factor`, Sabine energy balance); a fill adds
+its flow resistance (Delany-Bazley dynamic density), which damps the lateral air motion; studs and
+furring block that motion across the bays. An empty cavity thus dips 5-10 dB below the mass law
+near f0 and over the octave above it; a filled one barely.
 
 Stud path (Sharp's model as presented by Vigran [3]_ Eq. 8.19-8.26):
 tau_B = tau_M 10^(-dR/10); line: dR = 10 lg(b f_c,line) - 23, point:
@@ -71,16 +58,25 @@ References
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
 
 from . import apertures as ap
+from .assembly import (  # re-exported: specs were defined here before the split
+    CHANNEL_STIFFNESS,  # noqa: F401
+    CONNECTION_TYPES,
+    DEFAULT_AREA,  # noqa: F401
+    STEEL_STUD_STIFFNESS,  # noqa: F401
+    Assembly,
+    Cavity,
+    Connection,
+    Leaf,
+    WallSpecError,
+)
 from .bands import sub_band_frequencies
 from .constants import C0, RHO0
-from .errors import AcousticsError
-from .materials import Material, get_material
 
 __all__ = [
     "WallSpecError",
@@ -98,44 +94,21 @@ __all__ = [
     "predict",
     "predict_tl",
     "CONNECTION_TYPES",
+    "cavity_loss_factor",
+    "resonance_factor",
 ]
 
 #: Field-incidence correction for one-third-octave bands, dB (Bies Eq. 7.42 [TR]).
 FIELD_CORRECTION = 5.5
-#: Default lab wall area, m^2 (ISO 10140 openings are about 10 m^2).
-DEFAULT_AREA = 10.0
 #: Sub-band points per third octave for tau averaging.
 POINTS = 8
 #: Bare stud-cavity absorption coefficient, gypsum board on studs, at 125...4000 Hz (octaves)
 #: (classic handbook table, from memory).
 _BARE_ALPHA = (np.array([125.0, 250, 500, 1000, 2000, 4000]), np.array([0.04, 0.04, 0.04, 0.04, 0.04, 0.04]))
-#: Default spring stiffness of a light-gauge (0.5 mm) steel stud across the cavity, N/m per m of stud.
-#: Order of magnitude from memory (published values span about 1e5-1e7); see DEVELOPERS notes.
-STEEL_STUD_STIFFNESS = 1.0e6
-#: Default stiffness of a resilient channel at one screw crossing, N/m (from memory, order of magnitude;
-#: gives a board-on-channel resonance near 40 Hz for 8.5 kg/m^2 board).
-CHANNEL_STIFFNESS = 1.5e5
 #: Depth a resilient channel adds to the cavity, m (1/2 in channel).
 CHANNEL_DEPTH = 0.0127
-CONNECTION_TYPES = ("none", "wood_stud", "steel_stud", "staggered_studs", "double_studs", "furring", "points")
-_DEFAULT_SPACING = {"wood_stud": 0.406, "steel_stud": 0.61, "furring": 0.61, "points": 0.6}
-
-
-class WallSpecError(AcousticsError):
-    """A wall spec is malformed; the message names the field and the rule."""
-
-
-def _num(d: dict, key: str, default: Any, lo: float, hi: float, where: str) -> Any:
-    v = d.get(key, default)
-    if v is None:
-        return None
-    try:
-        v = float(v)
-    except (TypeError, ValueError):
-        raise WallSpecError(f"{where}.{key} must be a number, got {v!r}") from None
-    if not np.isfinite(v) or not lo <= v <= hi:
-        raise WallSpecError(f"{where}.{key} must be between {lo:g} and {hi:g}, got {v!r}")
-    return v
+#: Connections whose studs or furring run through the cavity and block lateral air motion across the bays.
+PARTITIONING = ("wood_stud", "steel_stud", "staggered_studs", "double_studs", "furring")
 
 
 # ---------------------------------------------------------------- single leaf physics
@@ -225,212 +198,6 @@ def single_leaf_tl(
     return tl
 
 
-# ---------------------------------------------------------------- assembly description
-@dataclass(frozen=True)
-class Leaf:
-    """One leaf: screwed layers (masses and bending stiffnesses add), optional loss factor override."""
-
-    layers: tuple[Material, ...]
-    loss_factor: float | None = None
-
-    @property
-    def m(self) -> float:
-        """Surface density, kg/m^2."""
-        return float(sum(x.surface_density for x in self.layers))
-
-    @property
-    def stiffness(self) -> float:
-        """Bending stiffness per unit width B, N m (sum over unbonded layers)."""
-        return float(sum(x.bending_stiffness for x in self.layers))
-
-    @property
-    def fc(self) -> float:
-        """Critical frequency, Hz."""
-        return float(C0**2 / (2 * np.pi) * np.sqrt(self.m / self.stiffness))
-
-    @property
-    def thickness(self) -> float:
-        """Total thickness, m."""
-        return float(sum(x.thickness for x in self.layers))
-
-    def eta(self, f: Any) -> np.ndarray:
-        """Total loss factor at f: stiffness-weighted layer values, plus edge losses for masonry."""
-        f = np.asarray(f, float)
-        if self.loss_factor is not None:
-            base = self.loss_factor
-        else:
-            base = sum(x.loss_factor * x.bending_stiffness for x in self.layers) / self.stiffness
-        if any(x.edge_losses for x in self.layers):
-            return base + self.m / (485.0 * np.sqrt(f))
-        return np.full(f.shape, base)
-
-    def tl(self, f: Any, area: float | None = None) -> np.ndarray:
-        """Single-leaf TL at f, dB."""
-        return single_leaf_tl(f, self.m, self.fc, self.eta(f), area=area)
-
-    def to_dict(self) -> dict[str, Any]:
-        return {
-            "layers": [{"material": x.key, "thickness": x.thickness} for x in self.layers],
-            "loss_factor": self.loss_factor,
-        }
-
-
-@dataclass(frozen=True)
-class Cavity:
-    """Air space between two leaves: depth d (m) and porous fill thickness (m) and flow resistivity."""
-
-    depth: float
-    absorber_thickness: float = 0.0
-    flow_resistivity: float = 10000.0
-
-    @property
-    def fill_fraction(self) -> float:
-        return min(self.absorber_thickness / self.depth, 1.0) if self.depth > 0 else 0.0
-
-
-@dataclass(frozen=True)
-class Connection:
-    """How the leaves are tied: type, spacing (m), stiffness (None = rigid) and resilient channel."""
-
-    type: str = "none"
-    spacing: float | None = None
-    stiffness: float | None = None
-    channel_leaf: int | None = None
-    channel_spacing: float = 0.61
-    channel_stiffness: float = CHANNEL_STIFFNESS
-
-
-@dataclass(frozen=True)
-class Assembly:
-    """A wall: one or two leaves, cavity, connection, area, height and perimeter sealing."""
-
-    leaves: tuple[Leaf, ...]
-    cavity: Cavity | None = None
-    connection: Connection = field(default_factory=Connection)
-    area: float = DEFAULT_AREA
-    height: float = 2.7
-    perimeter_gap: float = 0.0
-
-    @classmethod
-    def from_dict(cls, spec: dict[str, Any]) -> Assembly:
-        """Build and validate an assembly from the JSON-like spec of the module docstring."""
-        if not isinstance(spec, dict):
-            raise WallSpecError(f"wall spec must be a mapping, got {type(spec).__name__}")
-        area = _num(spec, "area", DEFAULT_AREA, 0.5, 1000.0, "spec")
-        height = _num(spec, "height", 2.7, 0.5, 30.0, "spec")
-        raw = spec.get("leaves")
-        if not isinstance(raw, (list, tuple)) or len(raw) not in (1, 2):
-            raise WallSpecError("spec.leaves must be a list of 1 or 2 leaves")
-        leaves = tuple(_leaf(x, f"leaves[{i}]") for i, x in enumerate(raw))
-        cav_raw = spec.get("cavity")
-        cavity = None
-        if len(leaves) == 2:
-            if not isinstance(cav_raw, dict):
-                raise WallSpecError("spec.cavity is required (with depth in m) for a two-leaf wall")
-            depth = _num(cav_raw, "depth", None, 0.005, 1.0, "cavity")
-            if depth is None:
-                raise WallSpecError("cavity.depth is required, m")
-            ab = cav_raw.get("absorber") or {}
-            if not isinstance(ab, dict):
-                raise WallSpecError("cavity.absorber must be a mapping or null")
-            t = _num(ab, "thickness", 0.0, 0.0, 1.0, "cavity.absorber")
-            sig = _num(ab, "flow_resistivity", 10000.0, 1000.0, 200000.0, "cavity.absorber")
-            cavity = Cavity(depth, min(t, depth), sig)
-        elif cav_raw:
-            raise WallSpecError("spec.cavity needs two leaves; a single-leaf wall has no cavity")
-        conn = _connection(spec.get("connection") or {}, len(leaves))
-        seal = spec.get("sealing") or {"perimeter": "sealed"}
-        if not isinstance(seal, dict) or seal.get("perimeter", "sealed") not in ("sealed", "unsealed"):
-            raise WallSpecError("sealing.perimeter must be 'sealed' or 'unsealed'")
-        gap = 0.0
-        if seal.get("perimeter") == "unsealed":
-            gap = _num(seal, "gap_width", 0.003, 0.0002, 0.05, "sealing")
-        return cls(leaves, cavity, conn, area, height, gap)
-
-    def to_dict(self) -> dict[str, Any]:
-        """The normalised spec (round-trips through :meth:`from_dict`)."""
-        c = self.connection
-        out: dict[str, Any] = {
-            "area": self.area,
-            "height": self.height,
-            "leaves": [lf.to_dict() for lf in self.leaves],
-        }
-        if self.cavity:
-            out["cavity"] = {
-                "depth": self.cavity.depth,
-                "absorber": {
-                    "thickness": self.cavity.absorber_thickness,
-                    "flow_resistivity": self.cavity.flow_resistivity,
-                },
-            }
-        conn: dict[str, Any] = {"type": c.type, "spacing": c.spacing, "stiffness": c.stiffness}
-        if c.channel_leaf is not None:
-            conn["resilient_channel"] = {
-                "leaf": c.channel_leaf,
-                "spacing": c.channel_spacing,
-                "stiffness": c.channel_stiffness,
-            }
-        out["connection"] = conn
-        out["sealing"] = (
-            {"perimeter": "unsealed", "gap_width": self.perimeter_gap}
-            if self.perimeter_gap
-            else {"perimeter": "sealed"}
-        )
-        return out
-
-
-def _leaf(raw: Any, where: str) -> Leaf:
-    if not isinstance(raw, dict) or not isinstance(raw.get("layers"), (list, tuple)) or not raw["layers"]:
-        raise WallSpecError(f"{where} must be a mapping with a non-empty 'layers' list")
-    mats: list[Material] = []
-    for j, lay in enumerate(raw["layers"]):
-        w = f"{where}.layers[{j}]"
-        if isinstance(lay, str):
-            lay = {"material": lay}
-        if not isinstance(lay, dict) or "material" not in lay:
-            raise WallSpecError(f"{w} must be a material key or a mapping with 'material'")
-        count = lay.get("count", 1)
-        if not isinstance(count, int) or isinstance(count, bool) or not 1 <= count <= 6:
-            raise WallSpecError(f"{w}.count must be a whole number 1-6, got {count!r}")
-        try:
-            mat = get_material(lay["material"], _num(lay, "thickness", None, 0.001, 1.0, w))
-        except AcousticsError as exc:
-            raise WallSpecError(f"{w}: {exc}") from None
-        mats.extend([mat] * count)
-    eta = _num(raw, "loss_factor", None, 1e-4, 1.0, where)
-    return Leaf(tuple(mats), eta)
-
-
-def _connection(raw: dict, n_leaves: int) -> Connection:
-    if not isinstance(raw, dict):
-        raise WallSpecError("spec.connection must be a mapping")
-    kind = raw.get("type", "none" if n_leaves == 2 else "none")
-    if kind not in CONNECTION_TYPES:
-        raise WallSpecError(f"connection.type must be one of {', '.join(CONNECTION_TYPES)}, got {kind!r}")
-    if n_leaves == 1 and kind != "none":
-        raise WallSpecError("connection.type must be 'none' for a single-leaf wall")
-    spacing = _num(raw, "spacing", _DEFAULT_SPACING.get(kind), 0.1, 3.0, "connection")
-    default_k = STEEL_STUD_STIFFNESS if kind == "steel_stud" else None
-    stiffness = _num(raw, "stiffness", default_k, 1e3, 1e12, "connection")
-    rc = raw.get("resilient_channel")
-    if rc is None:
-        return Connection(kind, spacing, stiffness)
-    if not isinstance(rc, dict) or rc.get("leaf") not in (0, 1) or n_leaves != 2:
-        raise WallSpecError("connection.resilient_channel needs 'leaf': 0 or 1 on a two-leaf wall")
-    if kind not in ("wood_stud", "steel_stud", "furring"):
-        raise WallSpecError(
-            "connection.resilient_channel needs studs or furring (wood_stud, steel_stud, furring)"
-        )
-    return Connection(
-        kind,
-        spacing,
-        stiffness,
-        int(rc["leaf"]),
-        _num(rc, "spacing", 0.61, 0.2, 1.5, "resilient_channel"),
-        _num(rc, "stiffness", CHANNEL_STIFFNESS, 1e3, 1e9, "resilient_channel"),
-    )
-
-
 # ---------------------------------------------------------------- double leaf physics
 def resonance_frequency(
     m1: float,
@@ -503,6 +270,126 @@ def cavity_path_tl(
     if alpha is not None:
         tau = np.maximum(tau, t12 / (4 * np.asarray(alpha, float)))
     return np.where(f <= f0, np.asarray(tl_m, float), -10 * np.log10(tau))
+
+
+#: Angles for the diffuse-field average of the lumped resonance model, rad (field incidence, 0-78 deg).
+_THETA = np.deg2rad(np.linspace(1.625, 76.375, 24))
+#: sin of the azimuth between the trace wave and the studs (0-90 deg, 6 midpoints).
+_PHI_SIN = np.sin(np.deg2rad(np.linspace(7.5, 82.5, 6)))
+
+
+def cavity_loss_factor(f: Any, depth: float, alpha: Any, *, c0: float = C0) -> np.ndarray:
+    """Loss factor of the air in a cavity of depth d whose faces absorb alpha, dimensionless.
+
+    Notes
+    -----
+    Energy balance of a diffuse field in a room of volume V = S d bounded by two faces of area S with
+    absorption area A = 2 alpha S: eta = c0 A / (8 pi f V) (Sabine's decay rate written as a loss
+    factor, eta = 2.2 / (f T)) = alpha / (2 k d). Derived; the same alpha limits the cavity path.
+    """
+    f = np.asarray(f, float)
+    return np.asarray(alpha, float) * c0 / (4 * np.pi * f * depth)
+
+
+def _layer_matrix(kc: Any, zc: Any, kx: Any, h: float) -> tuple[Any, Any, Any, Any]:
+    """Transfer matrix (T11, T12, T21, T22) for (p, v_z) of a fluid layer of thickness h at trace kx."""
+    kz = np.sqrt(kc**2 - kx**2 + 0j)
+    kz = np.where(kz.imag > 0, -kz, kz)  # decaying branch for exp(j omega t)
+    zn = zc * kc / kz
+    c, s = np.cos(kz * h), np.sin(kz * h)
+    return c, 1j * zn * s, 1j * s / zn, c
+
+
+def _matmul(a: tuple[Any, ...], b: tuple[Any, ...]) -> tuple[Any, Any, Any, Any]:
+    return (
+        a[0] * b[0] + a[1] * b[2],
+        a[0] * b[1] + a[1] * b[3],
+        a[2] * b[0] + a[3] * b[2],
+        a[2] * b[1] + a[3] * b[3],
+    )
+
+
+def resonance_factor(
+    f: Any,
+    m1: float,
+    m2: float,
+    cavity: Cavity,
+    eta_air: Any,
+    *,
+    partitioned: bool = False,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> np.ndarray:
+    """Diffuse-field transmission of two air-coupled limp leaves over that of one leaf of mass m1 + m2.
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency, Hz.
+    m1, m2 : float
+        Leaf surface densities, kg/m^2.
+    cavity : Cavity
+        Depth and porous fill (fill laid against leaf 1).
+    eta_air : array_like
+        Loss factor of the cavity (broadcast with f), see :func:`cavity_loss_factor`.
+    partitioned : bool
+        Studs or furring cross the cavity: the air cannot move laterally across the bays, only along them.
+
+    Returns
+    -------
+    ndarray
+        R(f) = <tau_2> / <tau_M>, averaged over 0-78 degrees with weight sin cos (and over the azimuth
+        to the studs when partitioned): R >> 1 around f0 when the cavity is poorly damped, R -> 1 well
+        below f0, R << 1 above.
+
+    Notes
+    -----
+    Transfer-matrix model limp leaf - cavity layer(s) - limp leaf, infinite layers at trace
+    wavenumber k_x = k sin(theta) (the standard layered-media method, e.g. Vigran 2008 ch. 6 and
+    Allard & Atalla 2009, from memory). The cavity layers give p_a = A v1 + B v2, p_b = C v1 + D v2
+    (A = T11/T21, B = -det T / T21, C = 1/T21, D = -T22/T21) and, with Z0 = rho0 c0 / cos(theta),
+
+        tau(theta) = | 2 Z0 C / ((j w m1 + Z0 + A)(j w m2 + Z0 - D) + B C) |^2.
+
+    Bulk modulus of the cavity rho0 c0^2 (1 + j eta) d / (d + 0.4 t): the same isothermal-fill
+    softening as :func:`resonance_frequency`, with the cavity's own loss. The fill adds the
+    Delany-Bazley dynamic density rho = Z_c k_c / omega (flow resistance). Partitioned: k_x along
+    the studs only, k_x sin(phi), phi uniform over 0-90 degrees (derived).
+
+    For a thin locally reacting layer this is the lumped mass-air-mass system of Bies Eq. 7.62 /
+    Hopkins Eq. 4.72 with its damping kept; far above f0 (normal incidence) it tends to
+    tau1 tau2 / (2 k d)^2, Sharp's middle branch. An empty cavity is not locally reacting: along the
+    bays its resonance rises as 1/cos(theta), which spreads the dip over the octave above f0.
+    """
+    f = np.asarray(f, float)
+    w = (2 * np.pi * f)[..., None]
+    if partitioned:
+        w = w[..., None]
+    k = w / c0
+    cos, sin = np.cos(_THETA), np.sin(_THETA)
+    z0 = rho0 * c0 / cos
+    kx = k * sin * (_PHI_SIN[:, None] if partitioned else 1.0)
+    extra = (None, None) if partitioned else (None,)
+    eta = np.asarray(eta_air, float)[(..., *extra)] if np.ndim(eta_air) else eta_air
+    d, tf = cavity.depth, cavity.absorber_thickness
+    kmod = rho0 * c0**2 * (1 + 1j * eta) * d / (d + 0.4 * tf)  # bulk modulus, as in f0, with the cavity loss
+    layers = []
+    if tf > 0:  # fill: Delany-Bazley dynamic density (flow resistance damps the lateral air motion)
+        kf, zf, _ = ap.delany_bazley(f, cavity.flow_resistivity, rho0=rho0, c0=c0)
+        rho_f = (zf * kf * rho0 * c0 / (2 * np.pi * f))[(..., *extra)]
+        layers.append(_layer_matrix(w * np.sqrt(rho_f / kmod), np.sqrt(rho_f * kmod), kx, tf))
+    if d - tf > 1e-6:
+        layers.append(_layer_matrix(w * np.sqrt(rho0 / kmod), np.sqrt(rho0 * kmod), kx, d - tf))
+    t11, t12, t21, t22 = layers[0] if len(layers) == 1 else _matmul(layers[0], layers[1])
+    a_, b_, c_, d_ = t11 / t21, -(t11 * t22 - t12 * t21) / t21, 1 / t21, -t22 / t21
+    den = (1j * w * m1 + z0 + a_) * (1j * w * m2 + z0 - d_) + b_ * c_
+    tau = np.abs(2 * z0 * c_ / den) ** 2
+    tau_m = np.abs(2 * z0 / (1j * w * (m1 + m2) + 2 * z0)) ** 2
+    if partitioned:
+        tau = tau.mean(-2)
+        tau_m = tau_m[..., 0, :]
+    wt = sin * cos
+    return (tau * wt).sum(-1) / (tau_m * wt).sum(-1)
 
 
 def _line_mobility(f: np.ndarray, leaf: Leaf) -> np.ndarray:
@@ -585,6 +472,7 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
     )
     fl = C0 / (2 * np.pi * d)
     tau_m = _limp_tau(f, a.m + b.m, S, C0, RHO0)
+    alpha = cavity_absorption(f, cav)
     tcav = 10 ** (
         -cavity_path_tl(
             f,
@@ -593,10 +481,23 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
             -10 * np.log10(tau_m),
             f0,
             d,
-            cavity_absorption(f, cav),
+            alpha,
         )
         / 10
     )
+    # Resonance of the air-coupled leaves (Sharp's TL_M below f0 has none): where the damped
+    # mass-air-mass model transmits more than Sharp's branches, below f_l, it governs.
+    low = np.any(f < fl, axis=-1)  # bands that reach below f_l (only these need the resonance model)
+    res = np.zeros_like(f)
+    res[low] = resonance_factor(
+        f[low],
+        a.m,
+        b.m,
+        Cavity(d, cav.absorber_thickness, cav.flow_resistivity),
+        cavity_loss_factor(f[low], d, alpha[low]),
+        partitioned=asm.connection.type in PARTITIONING,
+    )
+    tcav = np.where(f < fl, np.maximum(tcav, tau_m * res), tcav)
     limp = [_limp_tau(f, lf.m, S, C0, RHO0) for lf in asm.leaves]
     dip = np.mean(
         [

@@ -62,17 +62,37 @@ def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
     return out
 
 
-def _audits(job: Job) -> dict | None:
-    """Last leak audits per wall from qa.impact, when that module provides them."""
-    if hasattr(impact, "audits_for_job"):
+#: Audit summary keys the walk shows; the curves and alternative views stay on the server.
+AUDIT_KEYS = ("scheme", "rating_name", "target", "designed", "as_found", "walked", "shortfall", "error", "order",
+              "after", "needed", "flags", "flag_text", "unmodelled")
+
+
+def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
+    out = {k: summary.get(k) for k in AUDIT_KEYS if k in summary}
+    for key in ("order", "needed"):
+        if out.get(key) is not None:
+            out[key] = [client_ids.get(i, str(i)) for i in out[key]]
+    out["rows"] = [{"finding": client_ids.get(r.get("finding"), str(r.get("finding"))), "gain": r.get("gain"),
+                    "label": r.get("label"), "status": r.get("status")} for r in summary.get("rows") or []]
+    # Which findings this audit counted: the walk marks the ones recorded or changed since as missing.
+    out["includes"] = [client_ids[i] for i in client_ids if i in set(summary.get("views", {}).get(
+        "walked", {}).get("order") or summary.get("order") or [])]
+    return _plain(out)
+
+
+def _audits(job: Job, walls: list[Wall]) -> dict | None:
+    """Last leak audits per wall from qa.impact, when that module provides them (keyed by wall id)."""
+    if hasattr(impact, "audits_for_walls"):
+        audits = impact.audits_for_walls(walls)
+    elif hasattr(impact, "audits_for_job"):
         audits = impact.audits_for_job(job)
-        if isinstance(audits, dict):
-            return {str(k): _plain(v) for k, v in audits.items()}
-        return {str(a.get("wall") if isinstance(a, dict) else i): _plain(a) for i, a in enumerate(audits or [])}
-    if hasattr(impact, "audit_summary"):
-        return {str(w.id): _plain(impact.audit_summary(w))
-                for w in Wall.objects.live().filter(job=job).select_related("wall_type")}
-    return None
+    elif hasattr(impact, "audit_summary"):
+        audits = {w.id: impact.audit_summary(w) for w in walls}
+    else:
+        return None
+    client_ids = dict(Finding.objects.filter(job=job).values_list("id", "client_id"))
+    client_ids = {k: str(v) for k, v in client_ids.items()}
+    return {str(k): _slim_audit(v, client_ids) for k, v in (audits or {}).items() if isinstance(v, dict)}
 
 
 def build_bundle(job: Job, member: Member) -> dict:
@@ -92,7 +112,7 @@ def build_bundle(job: Job, member: Member) -> dict:
         "id", "wall_id", "finding_id", "purpose", "width", "height", "bytes", "sha256", "captured_at")
     if member.is_crew:
         photos = photos.filter(finding__trade=member.trade)
-    audits = _audits(job)
+    audits = _audits(job, walls)
 
     body = {
         "format": BUNDLE_FORMAT,

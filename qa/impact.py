@@ -158,7 +158,8 @@ class _Context:
         self.area = float(wall.length_m) * float(wall.height_m)
         self.asm = _assembly(wt, self.area, float(wall.height_m))
         self.key = (wt.pk, round(self.area, 4), round(float(wall.height_m), 4))
-        self.single_leaf = (self.asm is not None and len(self.asm.leaves) == 1) or wt.construction == "masonry"
+        one_leaf = self.asm is not None and len(self.asm.leaves) == 1
+        self.single_leaf = one_leaf or wt.construction == "masonry"
         self.tl = tl_array(wt.tl)
         self.memo = memo if memo is not None else {}
 
@@ -203,7 +204,8 @@ def _gap_leak(f, depth: float, memo: dict):
             return key, memo[key]
         shape, width, length, extra = "hole", math.sqrt(4 * area / math.pi), 1.0, ("equivalent_hole",)
     if fill == "fibre":
-        leak = acoustics.filled_gap(width, length, depth, flow_resistivity=FIBRE_FLOW_RESISTIVITY, shape=shape)
+        leak = acoustics.filled_gap(width, length, depth, flow_resistivity=FIBRE_FLOW_RESISTIVITY,
+                                    shape=shape)
     elif fill == "skin":
         leak = acoustics.skin_gap(width, length, depth, surface_density=SKIN_SURFACE_DENSITY, shape=shape)
     elif kind == "slit":
@@ -273,7 +275,8 @@ def finding_leak(f, ctx: _Context):
             return _relabel(acoustics.insulation_defect(ctx.asm, min(f.area_m2, ctx.asm.area)),
                             f.kind, label)
         if f.kind == "channel_short":
-            return _relabel(acoustics.channel_short_circuit(ctx.asm, min(f.area_m2 / ctx.area, 1.0)), f.kind, label)
+            fraction = min(f.area_m2 / ctx.area, 1.0)
+            return _relabel(acoustics.channel_short_circuit(ctx.asm, fraction), f.kind, label)
         if f.kind == "missing_layer":
             return _relabel(acoustics.missing_layer(ctx.asm, 1 if f.face == "b" else 0,
                                                     min(f.area_m2, ctx.asm.area)), f.kind, label)
@@ -362,10 +365,10 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None):
     fill "fibre" -> :func:`acoustics.filled_gap`, "skin" -> :func:`acoustics.skin_gap`; all times
     ``count``. A gap in one face of a cavity wall -> :func:`acoustics.one_face_gap` (layers known) or
     :func:`acoustics.one_face_gap_from_lab`. bridge -> :func:`acoustics.rigid_bridge`, missing
-    insulation -> :func:`acoustics.insulation_defect`, channel short -> :func:`acoustics.channel_short_circuit`,
-    missing layer -> :func:`acoustics.missing_layer`, back-to-back boxes ->
-    :func:`acoustics.back_to_back_boxes`. Unrecorded depth: the wall type thickness for a through-path,
-    the board (leaf) thickness for a one-face gap.
+    insulation -> :func:`acoustics.insulation_defect`, channel short ->
+    :func:`acoustics.channel_short_circuit`, missing layer -> :func:`acoustics.missing_layer`,
+    back-to-back boxes -> :func:`acoustics.back_to_back_boxes`. Unrecorded depth: the wall type
+    thickness for a through-path, the board (leaf) thickness for a one-face gap.
     """
     import acoustics
 
@@ -446,7 +449,8 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     scheme = wall.rating_scheme or "stc"
     target = wall.target_rating
     out: dict[str, Any] = {
-        "v": ENGINE_VERSION, "wall": wall.pk, "scheme": scheme, "rating_name": RATING_NAMES.get(scheme, scheme),
+        "v": ENGINE_VERSION, "wall": wall.pk, "scheme": scheme,
+        "rating_name": RATING_NAMES.get(scheme, scheme),
         "target": target, "designed": None, "as_found": None, "shortfall": None, "error": None,
     }
     live = _live_findings(wall)
@@ -494,6 +498,23 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
         "reported": views["reported"],
         "verified": v,
     })
+    return out
+
+
+def fix_steps(summary: dict, view: str = "verified") -> dict[int, dict]:
+    """{finding id: {step, buys, after, alone, share, needed}} from a view's fix-first order."""
+    v = summary.get("views", {}).get(view)
+    if not v:
+        return {}
+    rows = {r["finding"]: r for r in v["rows"]}
+    needed = set(v["needed"] or [])
+    out, before = {}, v["as_found"]
+    for k, (fid, after) in enumerate(zip(v["order"], v["after"], strict=True), start=1):
+        r = rows[fid]
+        out[fid] = {"step": k, "buys": after - before, "after": after, "alone": r["gain"],
+                    "share": r["power_share"], "open_area": r["open_area_500"], "needed": fid in needed,
+                    "flags": r["flags"]}
+        before = after
     return out
 
 

@@ -41,7 +41,9 @@ if DEBUG:
     ALLOWED_HOSTS = ALLOWED_HOSTS or ["127.0.0.1", "localhost", "testserver"]
 else:
     if not SECRET_KEY or SECRET_KEY == _DEV_KEY or len(SECRET_KEY) < 32:
-        raise ImproperlyConfigured("SECRET_KEY: set a random value of at least 32 characters when debug is off")
+        raise ImproperlyConfigured(
+            "SECRET_KEY: set a random value of at least 32 characters when debug is off"
+        )
     if not ALLOWED_HOSTS:
         raise ImproperlyConfigured("ALLOWED_HOSTS: list the host names this server answers when debug is off")
 
@@ -61,7 +63,8 @@ def database_from_url(url: str) -> dict:
             "CONN_HEALTH_CHECKS": True,
         }
     if parts.scheme == "sqlite":
-        return {"ENGINE": "django.db.backends.sqlite3", "NAME": unquote(parts.path) or DATA_DIR / "db.sqlite3"}
+        name = unquote(parts.path) or DATA_DIR / "db.sqlite3"
+        return {"ENGINE": "django.db.backends.sqlite3", "NAME": name}
     raise ImproperlyConfigured(f"DATABASE_URL: scheme {parts.scheme!r} is not postgres:// or sqlite://")
 
 
@@ -91,6 +94,8 @@ INSTALLED_APPS = [
 
 MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
+    # Before whitenoise, so files it serves from the site root (the service worker) carry the policy too.
+    "qa.middleware.ContentSecurityPolicyMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",
@@ -98,7 +103,6 @@ MIDDLEWARE = [
     "django.contrib.auth.middleware.AuthenticationMiddleware",
     "django.contrib.messages.middleware.MessageMiddleware",
     "django.middleware.clickjacking.XFrameOptionsMiddleware",
-    "qa.middleware.ContentSecurityPolicyMiddleware",
 ]
 
 ROOT_URLCONF = "qa.urls"
@@ -225,6 +229,9 @@ if env_flag("SECURE_HTTPS", False):
     SECURE_HSTS_INCLUDE_SUBDOMAINS = True
     SESSION_COOKIE_SECURE = True
     CSRF_COOKIE_SECURE = True
+# Sign-in throttling (qa/views/login_throttle.py): failures per user name and address, counted in the cache.
+LOGIN_FAILURE_LIMIT = int(os.environ.get("LOGIN_FAILURE_LIMIT", 5))
+LOGIN_FAILURE_WINDOW = int(os.environ.get("LOGIN_FAILURE_WINDOW", 15 * 60))
 CSRF_TRUSTED_ORIGINS = [o for o in os.environ.get("CSRF_TRUSTED_ORIGINS", "").split(",") if o]
 
 LOGGING = {

@@ -1,1 +1,58 @@
-"""Signal hooks. Leak-audit cache invalidation lives with the adapter (qa/impact.py)."""
+"""Signal hooks: leak-audit cache invalidation.
+
+A wall's audit depends on its findings, its openings, the wall itself (size, target, scheme) and its
+wall type (curve, layers, thickness). Every save or delete of one of them replaces the matching
+stamp in the shared cache (:func:`qa.impact.invalidate_wall`, :func:`qa.impact.invalidate_wall_type`),
+so the next read recomputes. Queryset ``update()`` and ``bulk_create()`` send no signals: code that
+uses them must call the invalidate functions itself.
+"""
+
+from __future__ import annotations
+
+from django.db import transaction
+from django.db.models.signals import post_delete, post_init, post_save
+from django.dispatch import receiver
+
+from . import impact
+from .models import Finding, Opening, Wall, WallType
+
+
+def _later(fn, *args) -> None:
+    # Invalidate now (readers inside the transaction see the change) and again after commit, so a
+    # reader in another process that refilled the cache between the two sees a fresh stamp.
+    fn(*args)
+    transaction.on_commit(lambda: fn(*args))
+
+
+@receiver(post_init, sender=Finding)
+def _remember_wall(sender, instance, **kwargs):
+    # A finding moved to another wall changes both walls. __dict__ avoids loading a deferred field.
+    instance._audit_wall_id = instance.__dict__.get("wall_id")
+
+
+@receiver(post_save, sender=Finding)
+@receiver(post_delete, sender=Finding)
+def _finding_changed(sender, instance, **kwargs):
+    _later(impact.invalidate_wall, instance.wall_id)
+    before = getattr(instance, "_audit_wall_id", None)
+    if before and before != instance.wall_id:
+        _later(impact.invalidate_wall, before)
+    instance._audit_wall_id = instance.wall_id
+
+
+@receiver(post_save, sender=Opening)
+@receiver(post_delete, sender=Opening)
+def _opening_changed(sender, instance, **kwargs):
+    _later(impact.invalidate_wall, instance.wall_id)
+
+
+@receiver(post_save, sender=Wall)
+@receiver(post_delete, sender=Wall)
+def _wall_changed(sender, instance, **kwargs):
+    _later(impact.invalidate_wall, instance.pk)
+
+
+@receiver(post_save, sender=WallType)
+@receiver(post_delete, sender=WallType)
+def _wall_type_changed(sender, instance, **kwargs):
+    _later(impact.invalidate_wall_type, instance.pk)

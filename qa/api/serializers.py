@@ -171,6 +171,10 @@ class OpeningSerializer(serializers.ModelSerializer):
         wall = self.context["wall"]
         width = attrs.get("width_m", getattr(self.instance, "width_m", 0))
         height = attrs.get("height_m", getattr(self.instance, "height_m", 0))
+        if width > wall.length_m:
+            raise serializers.ValidationError({"width": ["is wider than the wall"]})
+        if height > wall.height_m:
+            raise serializers.ValidationError({"height": ["is taller than the wall"]})
         if width * height >= wall.area_m2:
             raise serializers.ValidationError({"width": ["the opening is as large as the wall or larger"]})
         return attrs

@@ -69,6 +69,7 @@ class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelM
     """Members of a job. Inspectors manage them; removing a member deactivates it."""
 
     serializer_class = s.MemberSerializer
+    queryset = Member.objects.none()  # the model, for the schema; get_queryset scopes it to the job
     write_right = "manage_members"
 
     def get_queryset(self):
@@ -88,6 +89,7 @@ class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelM
 class WallTypeViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
                       mixins.UpdateModelMixin, viewsets.GenericViewSet):
     serializer_class = s.WallTypeSerializer
+    queryset = WallType.objects.none()  # the model, for the schema; get_queryset scopes it to the job
 
     def get_queryset(self):
         return WallType.objects.filter(job=self.job)
@@ -108,6 +110,7 @@ class WallViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMix
     """Walls of a job, filterable by ``level`` and ``wall_type``. Creating a wall creates its seal points."""
 
     serializer_class = s.WallSerializer
+    queryset = Wall.objects.none()  # the model, for the schema; get_queryset scopes it to the job
 
     def get_queryset(self):
         walls = Wall.objects.live().filter(job=self.job).annotate(
@@ -171,6 +174,7 @@ class WallChildMixin(JobScopedMixin):
 class OpeningViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
                      mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
     serializer_class = s.OpeningSerializer
+    queryset = Opening.objects.none()  # the model, for the schema; get_queryset scopes it to the job
 
     def get_queryset(self):
         return Opening.objects.filter(wall=self.wall, removed=False)
@@ -199,6 +203,7 @@ class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveMod
     """Seal points of a wall. PATCH ``status`` to tick one; DELETE removes it (kept in the record)."""
 
     serializer_class = s.SealPointSerializer
+    queryset = SealPoint.objects.none()  # the model, for the schema; get_queryset scopes it to the job
 
     def get_queryset(self):
         return SealPoint.objects.filter(wall=self.wall, removed=False)
@@ -242,6 +247,7 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
     """
 
     serializer_class = s.FindingSerializer
+    queryset = Finding.objects.none()  # the model, for the schema; get_queryset scopes it to the job
     STEP_RIGHTS = {"fix": "fix", "verify": "verify", "reopen": "verify"}
 
     def right_needed(self) -> str:
@@ -312,7 +318,8 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
                 )
             except TransitionError as exc:
                 return Response({"status": [str(exc).partition(": ")[2]]}, status=status.HTTP_409_CONFLICT)
-        return Response(self.get_serializer(finding).data)
+        # The action's serializer_class is the request body; the answer is the whole finding.
+        return Response(s.FindingSerializer(finding, context=self.get_serializer_context()).data)
 
     @action(detail=True, methods=["post"], serializer_class=s.NoteSerializer)
     def fix(self, request, *args, **kwargs):
@@ -351,6 +358,7 @@ class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSe
     """The job's audit trail (read-only, append-only). Filter by ``target_type`` and ``target_id``."""
 
     serializer_class = s.EventSerializer
+    queryset = Event.objects.none()  # the model, for the schema; get_queryset scopes it to the job
 
     def get_queryset(self):
         events = Event.objects.filter(job=self.job).select_related("actor").order_by("-at", "-id")

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from collections import OrderedDict
-
 from django.contrib.auth import views as auth_views
 from django.contrib.auth.decorators import login_required
 from django.db.models import Count, Prefetch, Q
@@ -13,14 +11,18 @@ from django.shortcuts import render
 from .. import units
 from ..access import can, job_for
 from ..cautions import GENERAL_CAUTIONS, cautions_for
-from ..choices import FindingStatus, SealStatus
+from ..choices import FindingStatus
+from ..impact import audit_summary, audits_for_walls
 from ..models import Finding, Member, Photo, SealPoint, Wall
+from .audit import job_overview, wall_overview
+from .login_throttle import LoginThrottleMixin
 
 OPEN = [FindingStatus.OPEN, FindingStatus.REOPENED]
 
 
-class LoginView(auth_views.LoginView):
+class LoginView(LoginThrottleMixin, auth_views.LoginView):
     template_name = "qa/login.html"
+    http_method_names = ["get", "post", "head", "options"]  # no PUT alias of the form post
     redirect_authenticated_user = True
 
 
@@ -44,69 +46,41 @@ def job_list(request):
 
 @login_required
 def job_page(request, job_pk):
+    """Walls with their ratings, filters, the job-wide fix-first list and repeated defects."""
     job, member = job_for(request.user, job_pk)
-    walls = (
-        Wall.objects.live()
-        .filter(job=job)
-        .select_related("wall_type")
-        .annotate(
-            points=Count("seal_points", filter=Q(seal_points__removed=False), distinct=True),
-            checked=Count(
-                "seal_points",
-                filter=Q(seal_points__removed=False) & ~Q(seal_points__status=SealStatus.UNCHECKED),
-                distinct=True,
-            ),
-            open_findings=Count("findings", filter=Q(findings__removed=False, findings__status__in=OPEN),
-                                distinct=True),
-            fixed_findings=Count(
-                "findings", filter=Q(findings__removed=False, findings__status=FindingStatus.FIXED), distinct=True
-            ),
-        )
-        .order_by("level", "tag")
-    )
-    level = request.GET.get("level", "")
-    all_levels = sorted({w.level for w in walls})
-    by_level: OrderedDict[str, list] = OrderedDict()
-    for wall in walls:
-        if level and wall.level != level:
-            continue
-        by_level.setdefault(wall.level, []).append(wall)
-    return render(request, "qa/job.html", {
-        "job": job, "member": member, "by_level": by_level, "levels": all_levels, "level": level,
-        "wall_count": sum(len(v) for v in by_level.values()),
-    })
+    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
+    audits = audits_for_walls(walls)
+    findings = list(Finding.objects.live().filter(job=job).values_list(
+        "id", "wall_id", "trade", "status", "kind", "seal_point__label"))
+    ctx = job_overview(request.GET, job, walls, audits, findings)
+    ctx.update({"job": job, "member": member, "can_fix": can(member, "fix"), "can_verify": can(member, "verify"),
+                "cautions": cautions_for(GENERAL_CAUTIONS)})
+    return render(request, "qa/job.html", ctx)
 
 
 @login_required
 def wall_page(request, job_pk, wall_pk):
+    """One wall: its TL chart, the leak audit table, findings with photos and actions, the timeline."""
     job, member = job_for(request.user, job_pk)
-    photos = Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
     try:
         wall = Wall.objects.live().select_related("wall_type").get(pk=wall_pk, job=job)
-    except Wall.DoesNotExist:
+    except (Wall.DoesNotExist, ValueError):
         raise Http404("No such wall") from None
-    points = SealPoint.objects.filter(wall=wall, removed=False).order_by("position", "id")
-    findings = (
-        Finding.objects.live().filter(wall=wall).select_related("seal_point", "created_by").prefetch_related(photos)
+    summary = audit_summary(wall)
+    points = list(SealPoint.objects.filter(wall=wall, removed=False).order_by("position", "id"))
+    findings = list(
+        Finding.objects.live().filter(wall=wall)
+        .select_related("seal_point", "created_by", "fixed_by", "verified_by")
+        .prefetch_related(Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at")))
     )
-    if member.is_crew:
-        findings = findings.filter(trade=member.trade)
-    u = job.units
-    rows = [
-        {
-            "finding": f,
-            "size": describe_size(f, u),
-            "photos": list(f.photos.all()),
-        }
-        for f in findings
-    ]
+    ctx = wall_overview(job, member, wall, summary, findings)
     caution_keys = list(GENERAL_CAUTIONS) + sorted({p.caution for p in points if p.caution})
-    return render(request, "qa/wall.html", {
-        "job": job, "member": member, "wall": wall, "points": points, "rows": rows,
-        "length": units.fmt(wall.length_m, "size", u), "height": units.fmt(wall.height_m, "size", u),
-        "cautions": cautions_for(dict.fromkeys(caution_keys)),
-        "can_edit": can(member, "edit"),
+    ctx.update({
+        "job": job, "member": member, "wall": wall, "points": points,
+        "length": units.fmt(wall.length_m, "size", job.units), "height": units.fmt(wall.height_m, "size", job.units),
+        "cautions": cautions_for(dict.fromkeys(caution_keys)), "can_edit": can(member, "edit"),
     })
+    return render(request, "qa/wall.html", ctx)
 
 
 def describe_size(finding: Finding, u: str) -> str:

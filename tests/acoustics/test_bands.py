@@ -28,7 +28,7 @@ def test_exact_centres_match_base_10_values():
 def test_edges_touch_and_ratio_is_one_third_octave():
     lo, hi = acoustics.band_edges()
     np.testing.assert_allclose(hi[:-1], lo[1:], rtol=1e-12)
-    np.testing.assert_allclose(hi / lo, 10 ** 0.1, rtol=1e-12)
+    np.testing.assert_allclose(hi / lo, 10**0.1, rtol=1e-12)
 
 
 def test_band_slice_and_errors():

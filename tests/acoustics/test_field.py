@@ -83,13 +83,13 @@ H3 = [
 
 @pytest.mark.parametrize(("name", "r", "kff", "kfd", "lf", "rff", "rfd"), H3)
 def test_c15_flanking_path_indices(name, r, kff, kfd, lf, rff, rfd):
-    """C15: EN 12354-1 Annex H.3 printed R_Ff and R_Fd per flanking element (tolerance 0.05 dB, printed to 0.1)."""
+    """C15: EN 12354-1 Annex H.3 printed R_Ff and R_Fd per flanking element (0.05 dB; printed to 0.1)."""
     assert ac.flanking_path_index(r, r, kff, 11.5, lf) == pytest.approx(rff, abs=0.05)
     assert ac.flanking_path_index(r, 57, kfd, 11.5, lf) == pytest.approx(rfd, abs=0.05)
 
 
 def test_c15_apparent_index_and_dntw():
-    """C15: R'w = 52.17 -> 52 (printed 52) and DnT,w = 53.6 with 0.32 V/S, V = 50 m^3 (notes; tolerance 0.05 dB).
+    """C15: R'w = 52.17 -> 52 (printed 52) and DnT,w = 53.6 with 0.32 V/S, V = 50 m^3 (notes; 0.05 dB).
 
     Paths: direct, and per element Ff, Fd, Df (Df = Fd since K_Df = K_Fd and R_D = R_d = R_s,w).
     """

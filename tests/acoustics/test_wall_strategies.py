@@ -48,8 +48,8 @@ def test_fill_lowers_f0_isothermal():
     ("conn", "band_gain"), [("double_studs", 10.0), ("staggered_studs", 2.5), ("wood_stud", None)]
 )
 def test_absorption_helps_between_f0_and_fl_only_when_decoupled(conn, band_gain):
-    """Staggered studs gain less than measured (Springer Table 11.4: STC 39 -> 48): the plate-line
-    bridge path dominates in the model; see the published-assemblies table."""
+    """Staggered studs still gain less than measured (Springer Table 11.4: STC 39 -> 48, model 40 -> 45):
+    the plate-line bridge path dominates in the model; see the published-assemblies table."""
     empty, full = predict(wall(conn, fill=0.0)), predict(wall(conn, fill=0.089))
     band = (BANDS > 1.5 * empty.f0) & (BANDS < empty.f_l)
     gain = (full.tl - empty.tl)[band]

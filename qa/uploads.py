@@ -1,0 +1,187 @@
+"""Resumable photo uploads for the walk: open a session, send chunks at offsets, finish.
+
+The device names the photo (its UUID), the total size and the SHA-256 of the bytes it will send.
+Chunks must arrive at the server's current offset, so a cut-off upload asks for the offset and
+carries on from there. Finishing checks size and hash, then stores the photo the same way the
+photo API does (:func:`qa.photos.clean_photo`: a clean, metadata-free JPEG from the phone is kept
+byte for byte).
+"""
+
+from __future__ import annotations
+
+import hashlib
+import re
+import uuid
+
+from django.conf import settings
+from django.core.files.base import ContentFile
+from django.db import transaction
+from django.utils.dateparse import parse_datetime
+
+from .access import require
+from .choices import PhotoPurpose, Role
+from .models import Event, Finding, Member, Photo, PhotoUpload, Wall
+from .photos import clean_photo
+from .sync import Reject
+
+SHA256 = re.compile(r"^[0-9a-f]{64}$")
+
+
+def _uuid(value, field: str) -> uuid.UUID:
+    try:
+        return uuid.UUID(str(value))
+    except ValueError:
+        raise Reject({field: ["must be a UUID"]}) from None
+
+
+def state(upload: PhotoUpload) -> dict:
+    return {"id": str(upload.id), "offset": upload.offset, "total_bytes": upload.total_bytes, "done": False}
+
+
+def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, bool]:
+    """Open (or find again) the upload of photo ``data["id"]``; return its state and whether it is new.
+
+    ``data``: id (UUID), finding (the finding's client id) or wall (id), purpose, total_bytes,
+    sha256 (hex), captured_at (ISO 8601, optional), caption (optional).
+    """
+    job = member.job
+    photo_id = _uuid(data.get("id"), "id")
+    photo = Photo.objects.filter(pk=photo_id).first()
+    if photo is not None:
+        if photo.job_id != job.id:
+            raise Reject({"id": ["is already used"]})
+        return {"id": str(photo.id), "offset": photo.bytes, "total_bytes": photo.bytes, "done": True,
+                "sha256": photo.sha256}, False
+    existing = PhotoUpload.objects.filter(pk=photo_id).first()
+    if existing is not None:
+        if existing.job_id != job.id or existing.user_id != member.user_id:
+            raise Reject({"id": ["is already used"]})
+        return state(existing), False
+
+    total = data.get("total_bytes")
+    if isinstance(total, bool) or not isinstance(total, int) or not 0 < total <= settings.PHOTO_MAX_BYTES:
+        raise Reject({"total_bytes": [f"must be a whole number from 1 to {settings.PHOTO_MAX_BYTES}"]})
+    digest = str(data.get("sha256", "")).lower()
+    if not SHA256.match(digest):
+        raise Reject({"sha256": ["must be 64 hexadecimal digits"]})
+    purpose = data.get("purpose") or PhotoPurpose.DEFECT
+    if purpose not in PhotoPurpose.values:
+        raise Reject({"purpose": [f"must be one of {', '.join(PhotoPurpose.values)}"]})
+    finding = None
+    if data.get("finding"):
+        finding = Finding.objects.filter(client_id=_uuid(data["finding"], "finding"), job=job,
+                                         removed=False).first()
+        if finding is None:
+            raise Reject({"finding": ["no such finding in this job (sync the finding first)"]})
+        wall = finding.wall
+    else:
+        wall = Wall.objects.filter(pk=data.get("wall") if str(data.get("wall", "")).isdigit() else None,
+                                   job=job, removed=False).first()
+        if wall is None:
+            raise Reject({"wall": ["give the wall or the finding the photo shows"]})
+    try:
+        require(member, "fix", trade=finding.trade if finding else None)
+    except Exception as exc:  # PermissionDenied: answered as a rule, like the sync endpoint does
+        raise Reject({"non_field_errors": [str(exc)]}) from None
+    if member.role == Role.CREW:
+        if finding is None:
+            raise Reject({"finding": ["crew photos show the fix of a finding"]})
+        purpose = PhotoPurpose.FIX
+    captured = data.get("captured_at")
+    when = parse_datetime(captured) if isinstance(captured, str) else None
+    if captured and when is None:
+        raise Reject({"captured_at": ["must be an ISO 8601 date-time"]})
+    caption = data.get("caption") or ""
+    if not isinstance(caption, str) or len(caption) > 200:
+        raise Reject({"caption": ["must be text of at most 200 characters"]})
+    upload = PhotoUpload.objects.create(
+        id=photo_id, job=job, wall=wall, finding=finding, purpose=purpose, captured_at=when, caption=caption,
+        total_bytes=total, sha256=digest, user=member.user, device_id=str(device_id)[:64],
+    )
+    return state(upload), True
+
+
+def _upload(member: Member, photo_id, *, lock: bool = False) -> PhotoUpload:
+    qs = PhotoUpload.objects.select_for_update() if lock else PhotoUpload.objects
+    upload = qs.filter(pk=_uuid(photo_id, "id"), job=member.job, user=member.user).first()
+    if upload is None:
+        raise Reject({"id": ["no such upload; open it first"]})
+    return upload
+
+
+def upload_state(member: Member, photo_id) -> dict:
+    photo = Photo.objects.filter(pk=_uuid(photo_id, "id"), job=member.job).first()
+    if photo is not None:
+        return {"id": str(photo.id), "offset": photo.bytes, "total_bytes": photo.bytes, "done": True,
+                "sha256": photo.sha256}
+    return state(_upload(member, photo_id))
+
+
+class OffsetMismatch(Reject):
+    """A chunk that does not start at the server's offset (the device resumes from ``offset``)."""
+
+    def __init__(self, offset: int):
+        super().__init__({"offset": [f"must be {offset}, where the server's copy ends"]})
+        self.offset = offset
+
+
+@transaction.atomic
+def append_chunk(member: Member, photo_id, offset: int, chunk: bytes) -> dict:
+    """Append ``chunk`` at ``offset``; a repeated chunk already received is accepted and ignored."""
+    upload = _upload(member, photo_id, lock=True)
+    have = bytes(upload.received)
+    if offset < len(have) and offset + len(chunk) <= len(have) and have[offset:offset + len(chunk)] == chunk:
+        return state(upload)  # a retry of a chunk whose answer was lost
+    if offset != len(have):
+        raise OffsetMismatch(len(have))
+    if len(have) + len(chunk) > upload.total_bytes:
+        raise Reject({"chunk": [f"goes past the announced size of {upload.total_bytes} bytes"]})
+    upload.received = have + chunk
+    upload.save(update_fields=["received", "updated_at"])
+    return state(upload)
+
+
+def finish_upload(member: Member, photo_id) -> tuple[Photo, bool]:
+    """Check size and hash, store the photo; return it and whether it was made now."""
+    photo = Photo.objects.filter(pk=_uuid(photo_id, "id"), job=member.job).first()
+    if photo is not None:
+        return photo, False
+    with transaction.atomic():
+        upload = _upload(member, photo_id, lock=True)
+        data = bytes(upload.received)
+        if len(data) != upload.total_bytes:
+            raise Reject({"offset": [f"the upload has {len(data)} of {upload.total_bytes} bytes"]})
+        if hashlib.sha256(data).hexdigest() != upload.sha256:
+            # Start again: the bytes on the server are not what the device meant to send.
+            upload.received = b""
+            upload.save(update_fields=["received", "updated_at"])
+            raise Reject({"sha256": ["does not match the bytes received; the upload was reset"]})
+        clean = clean_photo(data)
+        photo = Photo(
+            id=upload.id, job=upload.job, wall=upload.wall, finding=upload.finding, purpose=upload.purpose,
+            caption=upload.caption, captured_at=upload.captured_at or clean.captured_at,
+            bytes=len(clean.image), width=clean.width, height=clean.height, sha256=clean.sha256,
+            received_sha256=clean.received_sha256, original_format=clean.original_format,
+            uploaded_by=member.user,
+        )
+        photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
+        photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
+        photo.save()
+        Event.record(upload.job, member.user, "photo.added", photo,
+                     {"finding": upload.finding_id, "purpose": upload.purpose, "sha256": photo.sha256,
+                      "resumable": True}, device_id=upload.device_id)
+        upload.delete()
+    return photo, True
+
+
+def photo_data(photo: Photo) -> dict:
+    from django.urls import reverse
+
+    return {
+        "id": str(photo.id), "done": True, "offset": photo.bytes, "total_bytes": photo.bytes,
+        "wall": photo.wall_id, "finding": photo.finding_id, "purpose": photo.purpose, "bytes": photo.bytes,
+        "sha256": photo.sha256, "received_sha256": photo.received_sha256, "width": photo.width,
+        "height": photo.height,
+        "thumbnail_url": reverse("qa:photo-file", kwargs={"job_pk": photo.job_id, "photo_id": photo.id,
+                                                           "kind": "thumb"}),
+    }

@@ -1,0 +1,434 @@
+"""Leak-audit pages: the crew list, mark fixed, the inspector's check, the hand-over report and sign-off.
+
+The wall and job pages (:mod:`qa.views.pages`) use the helpers here to present an audit summary
+(:func:`qa.impact.audit_summary`). Forms are plain HTML posts; every change goes through the
+finding's lifecycle methods, which write the Event shown in the timelines.
+"""
+
+from __future__ import annotations
+
+from collections import OrderedDict
+
+from django.contrib import messages
+from django.contrib.auth.decorators import login_required
+from django.core.exceptions import PermissionDenied
+from django.core.files.base import ContentFile
+from django.db import transaction
+from django.db.models import Prefetch, Q
+from django.http import Http404, HttpResponse
+from django.shortcuts import redirect, render
+from django.urls import reverse
+from django.utils.http import url_has_allowed_host_and_scheme
+from django.views.decorators.http import require_POST
+
+from .. import report as report_mod
+from ..access import can, job_for, membership, require
+from ..impact import fix_steps  # noqa: F401  (re-exported for templates' views)
+from ..cautions import GENERAL_CAUTIONS, cautions_for
+from ..choices import FindingStatus, PhotoPurpose, Trade
+from ..models import Event, Finding, Photo
+from ..models.findings import TransitionError
+from ..photos import PhotoError, clean_photo
+
+OPEN = (FindingStatus.OPEN, FindingStatus.REOPENED)
+NOTE_MAX = 2000
+SQ_IN = 0.0254**2  # m^2, exact
+
+
+# --------------------------------------------------------------------------- presentation helpers
+def rating_text(summary: dict, value, terms: dict | None = None) -> str:
+    """'STC 47' or 'Rw 52 (C -1; Ctr -5)'; '—' when there is no value."""
+    if value is None:
+        return "—"
+    text = f"{summary['rating_name']} {value}"
+    if terms:
+        text += f" (C {terms['c']:+d}; Ctr {terms['ctr']:+d})".replace("-", "−")
+    return text
+
+
+def open_area_text(m2: float | None, units: str) -> str:
+    """A small equivalent open area in the job's units: cm² (metric) or in² (imperial)."""
+    if m2 is None:
+        return "—"
+    value, unit = (m2 / SQ_IN, "in²") if units == "imperial" else (m2 * 1e4, "cm²")
+    if value == 0:
+        return f"0 {unit}"
+    digits = 2 if value < 1 else 1 if value < 10 else 0
+    return f"{value:.{digits}f} {unit}"
+
+
+def finding_size(f, u: str) -> str:
+    """A finding's recorded size in the job's units; small areas in cm² or in², never '0 m²'."""
+    from .. import units
+
+    def gap(v):
+        return units.fmt(v, "gap", u)
+
+    parts = []
+    if f.width_m and f.length_m:
+        parts.append(f"{gap(f.width_m)} × {gap(f.length_m)}")
+    elif f.width_m and f.diameter_m:
+        parts.append(f"{gap(f.width_m)} gap round ⌀ {gap(f.diameter_m)}")
+    elif f.diameter_m:
+        parts.append(f"⌀ {gap(f.diameter_m)}")
+    if f.area_m2:
+        small = f.area_m2 < (0.1 if u != "imperial" else 0.0929)
+        parts.append(open_area_text(f.area_m2, u) if small else units.fmt(f.area_m2, "area", u))
+    if f.count and f.count > 1:
+        parts.append(f"× {f.count}")
+    return " ".join(parts) or "—"
+
+
+def _safe_next(request, fallback: str) -> str:
+    nxt = request.POST.get("next") or request.GET.get("next") or ""
+    if nxt and url_has_allowed_host_and_scheme(nxt, allowed_hosts={request.get_host()},
+                                               require_https=request.is_secure()):
+        return nxt
+    return fallback
+
+
+def store_photo(job, finding, user, purpose: str, upload) -> Photo:
+    """Clean and store an uploaded photo of ``finding`` (same steps as the API photo upload)."""
+    clean = clean_photo(upload.read())
+    photo = Photo(job=job, wall_id=finding.wall_id, finding=finding, purpose=purpose,
+                  captured_at=clean.captured_at, bytes=len(clean.image), width=clean.width, height=clean.height,
+                  sha256=clean.sha256, received_sha256=clean.received_sha256,
+                  original_format=clean.original_format, uploaded_by=user)
+    photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
+    photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
+    photo.save()
+    Event.record(job, user, "photo.added", photo, {"finding": finding.pk, "purpose": purpose,
+                                                   "sha256": photo.sha256})
+    return photo
+
+
+def timeline(job, wall=None, findings=()) -> list[Event]:
+    """Events on a wall, its findings and their photos, oldest first (one query)."""
+    ids = [str(f.pk) for f in findings]
+    q = Q(target_type="finding", target_id__in=ids) | Q(target_type="photo", data__finding__in=[f.pk for f in findings])
+    if wall is not None:
+        q |= Q(target_type="wall", target_id=str(wall.pk))
+    return list(Event.objects.filter(job=job).filter(q).select_related("actor").order_by("at", "id"))
+
+
+def event_text(event: Event, labels: dict) -> str:
+    who = (event.actor.get_full_name() or event.actor.username) if event.actor else "system"
+    verb = event.verb.replace(".", " ").replace("_", " ")
+    what = labels.get((event.target_type, event.target_id), "")
+    note = event.data.get("note") if isinstance(event.data, dict) else ""
+    text = f"{who}: {verb}{' — ' + what if what else ''}"
+    return f"{text} · “{note}”" if note else text
+
+
+def _photos_prefetch():
+    return Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
+
+
+# --------------------------------------------------------------------------- crew and check lists
+def _grouped(findings) -> OrderedDict:
+    by_level: OrderedDict = OrderedDict()
+    for f in findings:
+        by_level.setdefault(f.wall.level, OrderedDict()).setdefault(f.wall, []).append(f)
+    return by_level
+
+
+@login_required
+def crew_page(request, job_pk):
+    """A crew member's open findings of their trade, by level and wall, with what fixed looks like."""
+    job, member = job_for(request.user, job_pk, "fix")
+    trade = member.trade if member.is_crew else request.GET.get("trade", "")
+    if trade and trade not in Trade.values:
+        raise Http404("No such trade")
+    findings = (Finding.objects.live().filter(job=job, status__in=OPEN).select_related("wall", "seal_point")
+                .prefetch_related(_photos_prefetch()).order_by("wall__level", "wall__tag", "id"))
+    waiting = Finding.objects.live().filter(job=job, status=FindingStatus.FIXED)
+    if trade:
+        findings, waiting = findings.filter(trade=trade), waiting.filter(trade=trade)
+    findings = list(findings)
+    return render(request, "qa/audit/crew.html", {
+        "job": job, "member": member, "trade": trade, "trade_label": dict(Trade.choices).get(trade, "all trades"),
+        "trades": Trade.choices, "by_level": _grouped(findings), "count": len(findings),
+        "waiting": waiting.count(), "cautions": cautions_for(GENERAL_CAUTIONS),
+    })
+
+
+@login_required
+def check_page(request, job_pk):
+    """The inspector's list of findings reported fixed and waiting for a check."""
+    job, member = job_for(request.user, job_pk, "verify")
+    findings = list(Finding.objects.live().filter(job=job, status=FindingStatus.FIXED)
+                    .select_related("wall", "seal_point", "fixed_by").prefetch_related(_photos_prefetch())
+                    .order_by("wall__level", "wall__tag", "id"))
+    return render(request, "qa/audit/check.html", {
+        "job": job, "member": member, "by_level": _grouped(findings), "count": len(findings),
+        "cautions": cautions_for(GENERAL_CAUTIONS),
+    })
+
+
+def _finding_for_step(request, job_pk, finding_pk, right: str):
+    member = membership(request.user, job_pk)
+    try:
+        finding = Finding.objects.select_for_update().get(pk=finding_pk, job_id=job_pk, removed=False)
+    except (Finding.DoesNotExist, ValueError):
+        raise Http404("No such finding") from None
+    require(member, right, trade=finding.trade)
+    return member, finding
+
+
+def _note(request) -> str:
+    note = (request.POST.get("note") or "").strip()
+    if len(note) > NOTE_MAX:
+        raise ValueError(f"note: at most {NOTE_MAX} characters")
+    return note
+
+
+@login_required
+@require_POST
+def mark_fixed(request, job_pk, finding_pk):
+    """Crew of the finding's trade (or the inspector) reports it fixed, with a photo and a note."""
+    try:
+        with transaction.atomic():
+            member, finding = _finding_for_step(request, job_pk, finding_pk, "fix")
+            note = _note(request)
+            finding.mark_fixed(request.user, note)
+            if request.FILES.get("photo"):
+                store_photo(member.job, finding, request.user, PhotoPurpose.FIX, request.FILES["photo"])
+    except (ValueError, PhotoError) as exc:  # TransitionError is a ValueError
+        messages.error(request, _message(exc))
+    else:
+        messages.success(request, f"{finding.get_kind_display()} on wall {finding.wall.tag} marked fixed. "
+                                  "The inspector will check it.")
+    return redirect(_safe_next(request, reverse("qa:crew", args=[job_pk])))
+
+
+@login_required
+@require_POST
+def check_finding(request, job_pk, finding_pk):
+    """The inspector verifies or reopens a fixed finding, optionally with a photo."""
+    action = request.POST.get("action")
+    if action not in ("verify", "reopen"):
+        messages.error(request, "action: choose verify or reopen")
+        return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
+    try:
+        with transaction.atomic():
+            member, finding = _finding_for_step(request, job_pk, finding_pk, "verify")
+            note = _note(request)
+            if action == "reopen" and not note:
+                raise ValueError("note: say why the finding is reopened")
+            (finding.verify if action == "verify" else finding.reopen)(request.user, note)
+            if request.FILES.get("photo"):
+                store_photo(member.job, finding, request.user, PhotoPurpose.VERIFY, request.FILES["photo"])
+    except (ValueError, PhotoError) as exc:
+        messages.error(request, _message(exc))
+    else:
+        done = "verified" if action == "verify" else "reopened"
+        messages.success(request, f"{finding.get_kind_display()} on wall {finding.wall.tag} {done}.")
+    return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
+
+
+def _message(exc: Exception) -> str:
+    if isinstance(exc, TransitionError):
+        return str(exc).partition(": ")[2] or str(exc)
+    return str(exc)
+
+
+# --------------------------------------------------------------------------- report and sign-off
+@login_required
+def report_page(request, job_pk):
+    job, member = job_for(request.user, job_pk)
+    content = report_mod.report_content(job)
+    digest = report_mod.content_sha256(content)
+    signed = report_mod.last_sign_off(job)
+    return render(request, "qa/report/index.html", {
+        "job": job, "member": member, "digest": digest, "signed": signed,
+        "current": signed is not None and signed.data.get("sha256") == digest,
+        "can_sign": can(member, "sign"), "totals": content["totals"],
+        "cautions": cautions_for(GENERAL_CAUTIONS),
+    })
+
+
+@login_required
+def report_pdf(request, job_pk):
+    job, _member = job_for(request.user, job_pk)
+    content = report_mod.report_content(job)
+    pdf = report_mod.render_pdf(job, content)
+    response = HttpResponse(pdf, content_type="application/pdf")
+    response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-handover.pdf"'
+    return response
+
+
+@login_required
+def punch_list_csv(request, job_pk):
+    job, _member = job_for(request.user, job_pk)
+    response = HttpResponse(report_mod.punch_list_csv(job), content_type="text/csv; charset=utf-8")
+    response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-punch-list.csv"'
+    return response
+
+
+@login_required
+@require_POST
+def sign_off(request, job_pk):
+    """The owner signs the report as it stands: an Event with who, when and the content's sha256."""
+    job, member = job_for(request.user, job_pk)
+    if not can(member, "sign"):
+        raise PermissionDenied("Only the owner signs off the hand-over report")
+    content = report_mod.report_content(job)
+    digest = report_mod.content_sha256(content)
+    seen = request.POST.get("sha256", "")
+    if seen and seen != digest:
+        messages.error(request, "The record changed while you were reading; review the report again, then sign.")
+        return redirect("qa:report", job_pk=job.pk)
+    Event.record(job, request.user, "report.signed", job, {
+        "sha256": digest, "who": request.user.get_full_name() or request.user.username,
+        "walls": content["totals"]["walls"], "open": content["totals"]["open"]})
+    messages.success(request, "Hand-over report signed off.")
+    return redirect("qa:report", job_pk=job.pk)
+
+
+# --------------------------------------------------------------------------- job and wall overviews
+STATUS_GROUPS = {"open": OPEN, "fixed": (FindingStatus.FIXED,), "verified": (FindingStatus.VERIFIED,)}
+FIX_LIST_SHOWN = 40
+
+
+def _bar(value: int, top: int) -> int:
+    return 0 if top <= 0 or value <= 0 else max(4, round(100 * value / top))
+
+
+def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict:
+    """Context of the job page: filtered walls, the fix-first list and repeated defects.
+
+    ``findings`` are tuples (id, wall id, trade, status, kind, seal point label) of live findings.
+    """
+    from ..choices import GapKind
+
+    kinds, trades = dict(GapKind.choices), dict(Trade.choices)
+    f = {k: params.get(k, "") for k in ("level", "type", "trade", "status", "below", "all")}
+    statuses = STATUS_GROUPS.get(f["status"])
+    by_wall: dict[int, list] = {}
+    for row in findings:
+        by_wall.setdefault(row[1], []).append(row)
+
+    def matches(row) -> bool:
+        return (not f["trade"] or row[2] == f["trade"]) and (statuses is None or row[3] in statuses)
+
+    rows, shown_ids = [], set()
+    for w in walls:
+        a = audits[w.pk]
+        mine = by_wall.get(w.pk, [])
+        if f["level"] and w.level != f["level"]:
+            continue
+        if f["type"] and str(w.wall_type_id) != f["type"]:
+            continue
+        if (f["trade"] or statuses is not None) and not any(matches(r) for r in mine):
+            continue
+        if f["below"] and not a["shortfall"]:
+            continue
+        shown_ids.add(w.pk)
+        reported = a["reported"]["as_found"] if a.get("reported") else None
+        rows.append({
+            "wall": w, "a": a, "target": rating_text(a, a["target"]), "designed": rating_text(a, a["designed"]),
+            "walked": rating_text(a, a.get("walked")), "current": rating_text(a, a["as_found"]),
+            "reported": rating_text(a, reported) if reported is not None and reported != a["as_found"] else "",
+            "open": sum(r[3] in OPEN for r in mine), "fixed": sum(r[3] == FindingStatus.FIXED for r in mine),
+            "below": bool(a["shortfall"]),
+        })
+    fix_list, walls_by_id = [], {w.pk: w for w in walls}
+    steps_of = {pk: fix_steps(audits[pk]) for pk in shown_ids}
+    for row in findings:
+        if row[1] not in shown_ids or row[3] not in OPEN or (f["trade"] and row[2] != f["trade"]):
+            continue
+        st = steps_of[row[1]].get(row[0])
+        a = audits[row[1]]
+        fix_list.append({
+            "id": row[0], "wall": walls_by_id[row[1]], "kind": kinds.get(row[4], row[4]),
+            "trade": trades.get(row[2], row[2]), "point": row[5] or "", "rating": a["rating_name"],
+            "buys": st["buys"] if st else None, "alone": st["alone"] if st else None,
+            "step": st["step"] if st else None, "after": st["after"] if st else None,
+            "share": round(100 * st["share"]) if st else None, "needed": bool(st and st["needed"]),
+        })
+    fix_list.sort(key=lambda r: (r["buys"] is None, -(r["buys"] or 0), -(r["share"] or 0), r["wall"].tag))
+    top = max((r["buys"] or 0 for r in fix_list), default=0)
+    for r in fix_list:
+        r["bar"] = _bar(r["buys"] or 0, top)
+    repeated: dict[tuple, dict] = {}
+    for row in findings:
+        item = repeated.setdefault((row[4], row[2]), {"kind": kinds.get(row[4], row[4]),
+                                                      "trade": trades.get(row[2], row[2]), "count": 0,
+                                                      "open": 0, "walls": set()})
+        item["count"] += 1
+        item["open"] += row[3] in OPEN
+        item["walls"].add(row[1])
+    repeated_rows = sorted(({**v, "walls": len(v["walls"])} for v in repeated.values()),
+                           key=lambda v: (-v["count"], v["kind"]))
+    top_rep = max((v["count"] for v in repeated_rows), default=0)
+    for v in repeated_rows:
+        v["bar"] = _bar(v["count"], top_rep)
+    levels = sorted({w.level for w in walls})
+    types = sorted({(w.wall_type_id, w.wall_type.code) for w in walls}, key=lambda t: t[1])
+    return {
+        "rows": rows, "filters": f, "levels": levels, "types": types, "trades": Trade.choices,
+        "statuses": [("open", "Open"), ("fixed", "Fixed, awaiting check"), ("verified", "Verified")],
+        "fix_list": fix_list if f["all"] else fix_list[:FIX_LIST_SHOWN], "fix_total": len(fix_list),
+        "repeated": repeated_rows[:15], "below_count": sum(r["below"] for r in rows),
+        "wall_count": len(walls), "waiting": sum(r[3] == FindingStatus.FIXED for r in findings),
+        "filtered": any(f[k] for k in ("level", "type", "trade", "status", "below")),
+    }
+
+
+def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
+    """Context of the wall page: chart, audit table, findings with actions, timeline."""
+    from .. import chart
+
+    u = job.units
+    steps = fix_steps(summary)
+    by_id = {f.pk: f for f in findings}
+    audit_rows, reached = [], False
+    target = summary.get("target")
+    verified = summary.get("verified") or {}
+    for fid in verified.get("order", []):
+        st, f = steps[fid], by_id.get(fid)
+        hits = target is not None and st["after"] >= target and not reached
+        reached = reached or hits
+        audit_rows.append({
+            "finding": f, "step": st["step"], "buys": st["buys"], "alone": st["alone"],
+            "after": rating_text(summary, st["after"]), "area": open_area_text(st["open_area"], u),
+            "share": f"{100 * st['share']:.0f} %" if st["share"] >= 0.005 else "< 1 %",
+            "share_bar": _bar(round(1000 * st["share"]), 1000), "needed": st["needed"], "reaches": hits,
+        })
+    chart_obj = chart.tl_chart(summary)
+    crew_trade = member.trade if member.is_crew else None
+    items = []
+    for f in findings:
+        mine = crew_trade is None or f.trade == crew_trade
+        if member.is_crew and not mine:
+            continue
+        items.append({"f": f, "size": finding_size(f, u), "photos": list(f.photos.all()),
+                      "step": steps.get(f.pk),
+                      "can_fix": can(member, "fix") and mine and f.status in OPEN,
+                      "can_check": can(member, "verify") and f.status == FindingStatus.FIXED,
+                      "can_reopen": can(member, "verify") and f.status == FindingStatus.VERIFIED})
+    events = timeline(job, wall, findings)
+    labels = {("wall", str(wall.pk)): f"wall {wall.tag}"}
+    labels.update({("finding", str(f.pk)): f"{f.get_kind_display().lower()} #{f.pk}" for f in findings})
+    for e in events:
+        if e.target_type == "photo" and isinstance(e.data, dict) and e.data.get("finding"):
+            labels[("photo", e.target_id)] = f"photo of #{e.data['finding']}"
+    names = dict(summary.get("flag_text", {}))
+    unmodelled = [{"finding": by_id.get(x["finding"]), "id": x["finding"], "reason": x["reason"]}
+                  for x in summary.get("unmodelled", [])]
+    s = summary
+    return {
+        "summary": s, "audit_rows": audit_rows, "chart_svg": chart.svg(chart_obj), "legend": chart.legend(chart_obj),
+        "ratings": {
+            "designed": rating_text(s, s.get("designed"), s.get("designed_terms")),
+            "walked": rating_text(s, s.get("walked"), ((s.get("views") or {}).get("walked") or {}).get("terms")),
+            "current": rating_text(s, s.get("as_found"), verified.get("terms")),
+            "reported": rating_text(s, (s.get("reported") or {}).get("as_found"),
+                                    (s.get("reported") or {}).get("terms")),
+            "target": rating_text(s, target),
+        },
+        "reaches": verified.get("reaches_target"), "needed_count": len(verified.get("needed") or []),
+        "items": items, "events": [{"e": e, "text": event_text(e, labels)} for e in reversed(events)],
+        "flags": [names[k] for k in s.get("flags", [])], "unmodelled": unmodelled,
+        "fixed_waiting": sum(f.status == FindingStatus.FIXED for f in findings),
+    }

@@ -1,0 +1,44 @@
+// The wall's leak audit from the bundle: designed vs as-found vs target and the fix-first order.
+// Offline, or with changes the server has not rated yet, it is the last known audit, marked as such.
+import { h } from "../dom.js";
+
+export function auditPanel(state, wall, findings) {
+  const audit = state.audits && state.audits[String(wall.id)];
+  if (!audit) return null;
+  const name = audit.rating_name || (wall.rating_scheme || "stc").toUpperCase();
+  const included = new Set(audit.includes || []);
+  const missing = findings.filter((f) => f.local || !included.has(f.client_id));
+  const stale = !navigator.onLine || missing.length > 0;
+  const label = (cid) => {
+    const f = state.findings.get(cid);
+    const row = (audit.rows || []).find((r) => r.finding === cid);
+    return (row && row.label) || (f ? kindLabel(state, f.kind) : "finding");
+  };
+  const facts = h("dl", { class: "ratings" },
+    h("div", {}, h("dt", {}, "Designed"), h("dd", {}, audit.designed ?? "—")),
+    h("div", { class: "asfound" }, h("dt", {}, "As found"), h("dd", {}, audit.as_found ?? "—")),
+    h("div", {}, h("dt", {}, "Target"), h("dd", {}, audit.target ?? "none")));
+  const order = (audit.order || []).map((cid, i) => {
+    const gain = (audit.rows || []).find((r) => r.finding === cid)?.gain;
+    const after = audit.after ? audit.after[i] : null;
+    return h("li", {}, label(cid), gain != null ? h("span", { class: "gain" }, ` +${gain} alone`) : null,
+      after != null ? h("span", { class: "after" }, ` → ${after}`) : null);
+  });
+  return h("section", { class: `audit${stale ? " stale" : ""}`, "aria-labelledby": "audit-h", "data-audit": stale ? "stale" : "current" },
+    h("h2", { id: "audit-h" }, `${name} leak audit`),
+    stale ? h("p", { class: "stale-note", "data-audit-stale": "" },
+      navigator.onLine ? "Last known audit: it does not include changes made on this phone yet."
+        : "Last known audit (out of date while offline).") : null,
+    audit.error ? h("p", { class: "muted" }, audit.error) : facts,
+    audit.shortfall ? h("p", { class: "short" }, `${audit.shortfall} below target as found.`) : null,
+    order.length ? [h("h3", {}, "Fix first"), h("ol", { class: "fix-first" }, order)] : null,
+    missing.length ? h("div", { class: "missing", "data-audit-missing": missing.length },
+      h("p", {}, `Not in this audit (${missing.length}):`),
+      h("ul", {}, missing.map((f) => h("li", {}, kindLabel(state, f.kind), f.note ? ` — ${f.note}` : "")))) : null,
+    h("p", { class: "basis" }, "Laboratory-type estimate from the recorded gaps, not a field test."));
+}
+
+export function kindLabel(state, kind) {
+  const hit = state.choices.gap_kinds.find(([v]) => v === kind);
+  return hit ? hit[1] : kind;
+}

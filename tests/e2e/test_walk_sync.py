@@ -1,0 +1,215 @@
+"""The walk's sync edges in a real headless Chromium: a replayed outbox, two devices editing the same
+finding, a photo upload cut off halfway, a new service worker version, a crew lead fixing an item."""
+
+from __future__ import annotations
+
+import hashlib
+import re
+
+import pytest
+
+from tests.conftest import PHONE, login
+from tests.e2e.test_walk_offline import go_offline, jpeg_file, open_walk, open_wall, record_finding, waiting
+
+pytestmark = [pytest.mark.e2e, pytest.mark.django_db(transaction=True)]
+
+ALL_SENT = ("() => document.querySelector('[data-changes-waiting]')?.dataset.changesWaiting === '0'"
+            " && document.querySelector('[data-photos-waiting]')?.dataset.photosWaiting === '0'"
+            " && !document.querySelector('[data-sync-now]')?.disabled")
+
+OUTBOX = """async () => {
+  const db = await new Promise((ok, no) => { const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
+  return await new Promise((ok) => { const q = db.transaction('outbox').objectStore('outbox').getAll(); q.onsuccess = () => ok(q.result); });
+}"""
+
+POST_SYNC = """async ([job, ops]) => {
+  const token = document.cookie.match(/csrftoken=([^;]+)/)[1];
+  const r = await fetch(`/api/jobs/${job}/sync/`, {method: 'POST', headers: {'Content-Type': 'application/json', 'X-CSRFToken': token},
+    body: JSON.stringify({device_id: 'replay', ops})});
+  return [r.status, await r.json()];
+}"""
+
+
+def new_phone(browser):
+    ctx = browser.new_context(**PHONE)
+    ctx.set_default_timeout(15000)
+    return ctx
+
+
+def test_replayed_outbox_makes_no_twins(live_server, phone, world):
+    from qa.models import Event, Finding
+
+    page = phone.new_page()
+    login(page, live_server.url, "insp")
+    open_walk(page, live_server.url, world.job.id)
+    go_offline(phone, page)
+    open_wall(page, world.wall.tag)
+    record_finding(page, 0, "6")
+    record_finding(page, 1, "4")
+    ops = [{k: op[k] for k in ("op_id", "kind", "base_version", "payload", "device_at")}
+           for op in page.evaluate(OUTBOX)]
+    assert len(ops) == 2
+    phone.set_offline(False)
+    first = page.evaluate(POST_SYNC, [world.job.id, ops])  # as if the answer was lost on the way back
+    second = page.evaluate(POST_SYNC, [world.job.id, ops])
+    assert first[0] == second[0] == 200 and first[1]["results"] == second[1]["results"]
+    page.click("[data-sync-now]")  # the phone sends the same outbox a third time
+    page.wait_for_function(ALL_SENT)
+    assert Finding.objects.count() == 2
+    assert Event.objects.filter(verb="finding.created").count() == 2
+
+
+def test_two_devices_edit_same_finding_conflict_kept_and_resolved(live_server, browser, world, api, artifacts):
+    from qa.models import Conflict, Finding
+
+    client = api(world.inspector)
+    point = world.wall.seal_points.first()
+    client.post(f"/api/jobs/{world.job.id}/findings/", {"wall": world.wall.id, "seal_point": point.id,
+                "kind": "slit", "face": "a", "width": 6, "length": 1500, "trade": "drywall"}, format="json")
+    finding = Finding.objects.get()
+    pages = []
+    for _ in range(2):
+        ctx = new_phone(browser)
+        page = ctx.new_page()
+        login(page, live_server.url, "insp")
+        open_walk(page, live_server.url, world.job.id)
+        go_offline(ctx, page)
+        page.goto(live_server.url + f"/walk/#/j/{world.job.id}/f/{finding.client_id}/edit")
+        page.wait_for_selector("[data-finding-form]")
+        pages.append((ctx, page))
+    for (ctx, page), (width, note) in zip(pages, [("9", "first phone"), ("12", "second phone")], strict=True):
+        page.fill("#f-width", width)
+        page.fill("#f-note", note)
+        page.click("[data-save]")
+        page.wait_for_selector("[data-finding-status]")
+    for ctx, page in pages:
+        ctx.set_offline(False)
+        page.click("[data-sync-now]")
+        page.wait_for_function(ALL_SENT)
+    finding.refresh_from_db()
+    assert finding.note == "first phone" and finding.width_m == pytest.approx(0.009)  # not overwritten
+    conflict = Conflict.objects.get()
+    assert conflict.device_version["changes"]["note"] == "second phone"
+    assert conflict.server_version["note"] == "first phone"
+    ctx, page = pages[1]
+    page.goto(live_server.url + f"/walk/#/j/{world.job.id}")
+    page.click("[data-conflicts]")
+    page.wait_for_selector(f"[data-conflict='{conflict.id}']")
+    page.screenshot(path=str(artifacts / "walk-conflict.png"))
+    page.click(f"[data-conflict='{conflict.id}'] [data-keep='device']")
+    page.wait_for_function(ALL_SENT)
+    page.wait_for_function("() => !document.querySelector('[data-conflicts]')")
+    conflict.refresh_from_db()
+    finding.refresh_from_db()
+    from qa.models import SyncOperation
+    print([o.result for o in SyncOperation.objects.filter(kind="conflict.resolve")])
+    assert conflict.resolution == "device" and conflict.resolved_by == world.inspector
+    assert finding.note == "second phone" and finding.width_m == pytest.approx(0.012)
+    for ctx, _ in pages:
+        ctx.close()
+
+
+def test_photo_upload_cut_off_resumes_byte_identical(live_server, phone, world, tmp_path):
+    from qa.models import Photo, PhotoUpload
+
+    page = phone.new_page()
+    login(page, live_server.url, "insp")
+    open_walk(page, live_server.url, world.job.id)
+    go_offline(phone, page)
+    open_wall(page, world.wall.tag)
+    record_finding(page, 0, "6", photo=jpeg_file(tmp_path / "big.jpg", (90, 140, 60), size=(2400, 1800)))
+    device_sha = page.evaluate(OUTBOX.replace("'outbox'", "'photos'"))[0]["sha256"]
+
+    cut = {"done": False}
+
+    def cut_second_chunk(route):
+        if "offset=0" not in route.request.url and not cut["done"]:
+            cut["done"] = True
+            route.abort("connectionreset")
+        else:
+            route.continue_()
+
+    page.route(re.compile(r"/uploads/[0-9a-f-]+/\?offset="), cut_second_chunk)
+    phone.set_offline(False)
+    page.click("[data-sync-now]")
+    page.wait_for_function("() => document.querySelector('.sync-error')")
+    assert cut["done"]
+    upload = PhotoUpload.objects.get()
+    assert 0 < len(upload.received) < upload.total_bytes  # the server kept the first part
+    page.unroute(re.compile(r"/uploads/[0-9a-f-]+/\?offset="))
+    page.click("[data-sync-now]")
+    page.wait_for_function(ALL_SENT)
+    photo = Photo.objects.get()
+    stored = photo.image.open("rb").read()
+    assert hashlib.sha256(stored).hexdigest() == device_sha == photo.received_sha256 == photo.sha256
+    assert not PhotoUpload.objects.exists()
+
+
+def test_new_service_worker_waits_for_the_user(live_server, phone, world):
+    from pathlib import Path
+
+    page = phone.new_page()
+    login(page, live_server.url, "insp")
+    page.goto(live_server.url + "/walk/")
+    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
+    page.wait_for_selector("[data-sw-notice][data-sw-state='ready']")
+    source = (Path(__file__).resolve().parents[2] / "static" / "root" / "sw.js").read_text()
+    newer = source.replace('const VERSION = "', 'const VERSION = "next-', 1)
+    assert newer != source
+    phone.route("**/sw.js", lambda route: route.fulfill(status=200, body=newer,
+                                                        headers={"Content-Type": "text/javascript",
+                                                                 "Cache-Control": "no-cache"}))
+    page.evaluate("() => navigator.serviceWorker.getRegistration().then((r) => r.update())")
+    page.wait_for_selector("[data-sw-notice][data-sw-state='update']")
+    old = page.evaluate("() => new Promise((ok) => { const c = new MessageChannel(); navigator.serviceWorker.controller.postMessage({type: 'version'}); navigator.serviceWorker.addEventListener('message', (e) => e.data.type === 'version' && ok(e.data.version), {once: true}); })")
+    assert not old.startswith("next-")  # still the old worker until the user accepts
+    with page.expect_navigation():
+        page.click("[data-sw-accept]")
+    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
+    now = page.evaluate("() => new Promise((ok) => { navigator.serviceWorker.addEventListener('message', (e) => e.data.type === 'version' && ok(e.data.version)); navigator.serviceWorker.controller.postMessage({type: 'version'}); })")
+    assert now.startswith("next-")
+
+
+def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(live_server, browser, world, api, tmp_path, artifacts):
+    from qa.models import Finding, Photo
+
+    client = api(world.inspector)
+    points = list(world.wall.seal_points.all())
+    for trade, point in (("electrical", points[0]), ("drywall", points[1])):
+        client.post(f"/api/jobs/{world.job.id}/findings/", {"wall": world.wall.id, "seal_point": point.id,
+                    "kind": "hole", "diameter": 20, "trade": trade, "note": f"{trade} item"}, format="json")
+    elec = Finding.objects.get(trade="electrical")
+    ctx = new_phone(browser)
+    page = ctx.new_page()
+    login(page, live_server.url, "elec")
+    open_walk(page, live_server.url, world.job.id)
+    page.click(f"[data-wall='{world.wall.tag}']")
+    page.wait_for_selector("[data-findings]")
+    assert page.locator("[data-finding]").count() == 1  # only the electrical item
+    assert page.locator("[data-points]").count() == 0  # crews do not tick seal points
+    page.click(f"[data-finding='{elec.client_id}']")
+    page.fill("#fix-note", "box wrapped with putty pad")
+    page.set_input_files("#fix-photo", jpeg_file(tmp_path / "fix.jpg", (160, 160, 160)))
+    page.wait_for_function("() => /ready/.test(document.querySelector('.fix-form .hint').textContent)")
+    page.screenshot(path=str(artifacts / "walk-crew-fix.png"))
+    page.click("[data-mark-fixed]")
+    page.wait_for_selector("[data-finding-status='fixed']")
+    page.wait_for_function(ALL_SENT)
+    elec.refresh_from_db()
+    assert elec.status == "fixed" and elec.fixed_by == world.electrician
+    assert Photo.objects.get().purpose == "fix"
+    ctx.close()
+
+    ctx = new_phone(browser)
+    page = ctx.new_page()
+    login(page, live_server.url, "insp")
+    open_walk(page, live_server.url, world.job.id)
+    page.goto(live_server.url + f"/walk/#/j/{world.job.id}/f/{elec.client_id}")
+    page.wait_for_selector("[data-finding-status='fixed']")
+    assert page.locator("[data-photo-state='server']").count() == 1
+    page.click("[data-verify]")
+    page.wait_for_selector("[data-finding-status='verified']")
+    page.wait_for_function(ALL_SENT)
+    elec.refresh_from_db()
+    assert elec.status == "verified"
+    ctx.close()

@@ -1,0 +1,134 @@
+"""Members API: /api/jobs/{job}/members/. Only the inspector manages members (DESIGN.md, Roles)."""
+
+from __future__ import annotations
+
+import pytest
+from django.contrib.auth import get_user_model
+
+from qa.models import Event, Member
+
+pytestmark = pytest.mark.django_db
+
+ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
+SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
+MANAGE = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404,
+          "anonymous": 403}
+
+
+def as_role(world, api, role):
+    return api(None if role == "anonymous" else world.users()[role])
+
+
+def url(job, *rest) -> str:
+    return "/".join([f"/api/jobs/{job.id}/members", *map(str, rest)]) + "/"
+
+
+@pytest.fixture
+def newcomer(db):
+    return get_user_model().objects.create_user("plum", password="x-y-z-123456", first_name="Pia", last_name="Lum")
+
+
+def member_of(world, user) -> Member:
+    return Member.objects.get(job=world.job, user=user)
+
+
+def test_inspector_adds_a_crew_lead_who_then_sees_the_job(world, api, newcomer):
+    r = api(world.inspector).post(url(world.job), {"username": "plum", "role": "crew", "trade": "plumbing"},
+                                  format="json")
+    assert r.status_code == 201, r.json()
+    assert r.json()["name"] == "Pia Lum"
+    member = member_of(world, newcomer)
+    assert (member.role, member.trade, member.active) == ("crew", "plumbing", True)
+    assert Event.objects.get(verb="member.added").data == {"role": "crew", "trade": "plumbing"}
+    assert api(newcomer).get(f"/api/jobs/{world.job.id}/walls/").status_code == 200
+
+
+def test_deactivated_member_loses_the_job(world, api):
+    member = member_of(world, world.electrician)
+    r = api(world.inspector).patch(url(world.job, member.pk), {"active": False}, format="json")
+    assert r.status_code == 200
+    member.refresh_from_db()
+    assert not member.active
+    assert Event.objects.get(verb="member.changed").data["active"] is False
+    assert api(world.electrician).get(f"/api/jobs/{world.job.id}/").status_code == 404
+
+
+RULES = [
+    ({"username": "plum", "role": "crew"}, "trade", "required for a crew member"),
+    ({"username": "plum", "role": "owner", "trade": "plumbing"}, "trade", "only crew members have a trade"),
+    ({"username": "plum", "role": "boss"}, "role", "not a valid choice"),
+    ({"username": "plum", "role": "crew", "trade": "roofing"}, "trade", "not a valid choice"),
+    ({"username": "nobody", "role": "owner"}, "username", "does not exist"),
+    ({"username": "elec", "role": "owner"}, "username", "already a member of this job"),
+    ({"role": "owner"}, "username", "required"),
+    ({"username": "plum", "role": "owner", "active": "perhaps"}, "active", "valid boolean"),
+]
+
+
+@pytest.mark.parametrize("data, field, rule", RULES, ids=[f"{f}-{i}" for i, (_, f, _) in enumerate(RULES)])
+def test_bad_input_is_refused_naming_field_and_rule(world, api, newcomer, data, field, rule):
+    before = Member.objects.count()
+    r = api(world.inspector).post(url(world.job), data, format="json")
+    assert r.status_code == 400, r.json()
+    assert rule in str(r.json()[field]), r.json()
+    assert Member.objects.count() == before and not Event.objects.exists()
+
+
+def test_a_membership_cannot_be_moved_to_another_user(world, api):
+    # Moving it onto a user who is already a member used to hit the unique constraint (a 500).
+    member = member_of(world, world.electrician)
+    r = api(world.inspector).patch(url(world.job, member.pk), {"username": "dry"}, format="json")
+    assert r.status_code == 400 and "cannot be changed" in r.json()["username"][0]
+    member.refresh_from_db()
+    assert member.user == world.electrician and not Event.objects.exists()
+
+
+def test_role_change_must_clear_the_trade(world, api):
+    member = member_of(world, world.electrician)
+    client = api(world.inspector)
+    r = client.patch(url(world.job, member.pk), {"role": "owner"}, format="json")
+    assert r.status_code == 400 and r.json() == {"trade": ["only crew members have a trade"]}
+    r = client.patch(url(world.job, member.pk), {"role": "owner", "trade": ""}, format="json")
+    assert r.status_code == 200
+    member.refresh_from_db()
+    assert (member.role, member.trade) == ("owner", "")
+
+
+def test_another_jobs_member_is_404(world, api):
+    theirs = Member.objects.get(job=world.other_job)
+    client = api(world.inspector)
+    assert client.get(url(world.job, theirs.pk)).status_code == 404
+    assert client.patch(url(world.job, theirs.pk), {"active": False}, format="json").status_code == 404
+    theirs.refresh_from_db()
+    assert theirs.active
+
+
+@pytest.mark.parametrize("method, on_item", [("put", False), ("delete", False), ("delete", True),
+                                             ("post", True)])
+def test_wrong_method_is_405(world, api, method, on_item):
+    member = member_of(world, world.owner)
+    target = url(world.job, member.pk) if on_item else url(world.job)
+    assert getattr(api(world.inspector), method)(target, {}, format="json").status_code == 405
+    assert Member.objects.filter(pk=member.pk).exists()
+
+
+@pytest.mark.parametrize("role", ROLES)
+def test_who_sees_members(world, api, role):
+    r = as_role(world, api, role).get(url(world.job))
+    assert r.status_code == SEE[role]
+    if r.status_code == 200:
+        assert {m["username"] for m in r.json()["results"]} == {"insp", "elec", "dry", "own"}
+
+
+@pytest.mark.parametrize("role", ROLES)
+def test_who_manages_members(world, api, role, newcomer):
+    owner = member_of(world, world.owner)
+    client = as_role(world, api, role)
+    r = client.post(url(world.job), {"username": "plum", "role": "owner"}, format="json")
+    assert r.status_code == (MANAGE[role] or 201)
+    r = client.patch(url(world.job, owner.pk), {"active": False}, format="json")
+    assert r.status_code == (MANAGE[role] or 200)
+    owner.refresh_from_db()
+    added = Member.objects.filter(user=newcomer).exists()
+    assert added is (role == "inspector") and owner.active is (role != "inspector")
+    assert Event.objects.count() == (2 if role == "inspector" else 0)
