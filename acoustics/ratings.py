@@ -44,6 +44,23 @@ import numpy as np
 
 from .bands import BANDS, N_BANDS
 from .errors import RatingError
+from .spectra import (
+    _K16,
+    _NEG_LN10_100,
+    _OITC,
+    _OITC_TOTAL,
+    _OITC_W,
+    _RW,
+    _RW_SHAPE,
+    _RW_TENTHS,
+    _SPEC1_100_3150,
+    _SPEC_USED,
+    _SPEC_W,
+    _SPEC_W_RW,
+    _STC,
+    _STC_SHAPE,
+    _TERMS,
+)
 
 __all__ = [
     "RwResult",
@@ -64,30 +81,6 @@ RATINGS = ("stc", "rw", "oitc")
 # the memory of rating millions of curves.
 _CHUNK = 16384
 
-from .spectra import (
-    _A_WEIGHT,
-    _K16,
-    _NEG_LN10_100,
-    _OITC,
-    _OITC_L,
-    _OITC_TOTAL,
-    _OITC_W,
-    _RW,
-    _RW_SHAPE,
-    _RW_TENTHS,
-    _SPEC1_100_3150,
-    _SPEC1_50_3150,
-    _SPEC1_ENL,
-    _SPEC2_100_3150,
-    _SPEC2_ENL,
-    _SPECTRA,
-    _SPEC_USED,
-    _SPEC_W,
-    _SPEC_W_RW,
-    _STC,
-    _STC_SHAPE,
-    _TERMS,
-)
 
 _E413 = "ASTM E413 range 125-4000 Hz"
 _ISO717 = "ISO 717-1 range 100-3150 Hz"

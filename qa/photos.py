@@ -13,7 +13,7 @@ import hashlib
 import io
 import warnings
 from dataclasses import dataclass
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 
 from django.conf import settings
 from PIL import Image, ImageOps, UnidentifiedImageError
@@ -56,7 +56,7 @@ def _capture_time(exif: Image.Exif) -> datetime | None:
         except ValueError:
             pass
     # Phones without an offset tag record local time; we keep it, marked as UTC-naive converted.
-    return moment.replace(tzinfo=timezone.utc)
+    return moment.replace(tzinfo=UTC)
 
 
 def _size(n: int) -> str:

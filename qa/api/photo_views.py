@@ -25,7 +25,7 @@ class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMi
     so uploading the same id again returns the stored photo instead of a twin."""
 
     serializer_class = s.PhotoSerializer
-    queryset = Photo.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Photo.objects.none()  # for the schema only; get_queryset scopes to the job
     parser_classes = [MultiPartParser, FormParser]
     lookup_value_regex = "[0-9a-fA-F-]{36}"
     write_right = "fix"  # inspectors and crews add photos; owners do not

@@ -69,7 +69,7 @@ class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelM
     """Members of a job. Inspectors manage them; removing a member deactivates it."""
 
     serializer_class = s.MemberSerializer
-    queryset = Member.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Member.objects.none()  # for the schema only; get_queryset scopes to the job
     write_right = "manage_members"
 
     def get_queryset(self):
@@ -89,7 +89,7 @@ class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelM
 class WallTypeViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
                       mixins.UpdateModelMixin, viewsets.GenericViewSet):
     serializer_class = s.WallTypeSerializer
-    queryset = WallType.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = WallType.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
         return WallType.objects.filter(job=self.job)
@@ -110,7 +110,7 @@ class WallViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMix
     """Walls of a job, filterable by ``level`` and ``wall_type``. Creating a wall creates its seal points."""
 
     serializer_class = s.WallSerializer
-    queryset = Wall.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Wall.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
         walls = Wall.objects.live().filter(job=self.job).annotate(
@@ -174,7 +174,7 @@ class WallChildMixin(JobScopedMixin):
 class OpeningViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
                      mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
     serializer_class = s.OpeningSerializer
-    queryset = Opening.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Opening.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
         return Opening.objects.filter(wall=self.wall, removed=False)
@@ -203,7 +203,7 @@ class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveMod
     """Seal points of a wall. PATCH ``status`` to tick one; DELETE removes it (kept in the record)."""
 
     serializer_class = s.SealPointSerializer
-    queryset = SealPoint.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = SealPoint.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
         return SealPoint.objects.filter(wall=self.wall, removed=False)
@@ -247,7 +247,7 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
     """
 
     serializer_class = s.FindingSerializer
-    queryset = Finding.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Finding.objects.none()  # for the schema only; get_queryset scopes to the job
     STEP_RIGHTS = {"fix": "fix", "verify": "verify", "reopen": "verify"}
 
     def right_needed(self) -> str:
@@ -358,7 +358,7 @@ class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSe
     """The job's audit trail (read-only, append-only). Filter by ``target_type`` and ``target_id``."""
 
     serializer_class = s.EventSerializer
-    queryset = Event.objects.none()  # the model, for the schema; get_queryset scopes it to the job
+    queryset = Event.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
         events = Event.objects.filter(job=self.job).select_related("actor").order_by("-at", "-id")

@@ -266,7 +266,7 @@ def test_edge_slit_transmits_more_than_mid_plate():
 
 
 def test_fill_skin_and_viscosity_reduce_transmission():
-    """Notes 6.6: fibre fill or a limp plug raise slit TL by 15-35 dB; hairline gaps are damped by viscosity."""
+    """Notes 6.6: fibre fill or a limp plug raise slit TL by 15-35 dB; viscosity damps hairline gaps."""
     bare = ac.slit(0.005, 1, 0.1).area
     filled = ac.filled_gap(0.005, 1, 0.1, flow_resistivity=1e4).area
     half = ac.filled_gap(0.005, 1, 0.1, flow_resistivity=1e4, fill_depth=0.05).area

@@ -27,8 +27,11 @@ def test_inspector_browses_to_a_walls_seal_points(live_server, phone, artifacts,
     from qa.models import SealPoint, Wall
 
     wall = Wall.objects.get(job=demo_job, tag="2-D1")
-    labels = list(SealPoint.objects.filter(wall=wall, removed=False).order_by("position")
-                  .values_list("label", flat=True))
+    labels = list(
+        SealPoint.objects.filter(wall=wall, removed=False)
+        .order_by("position")
+        .values_list("label", flat=True)
+    )
     page = phone.new_page()
     errors: list[str] = []
     page.on("pageerror", lambda exc: errors.append(str(exc)))
@@ -56,8 +59,9 @@ def test_inspector_browses_to_a_walls_seal_points(live_server, phone, artifacts,
 def test_pages_do_not_scroll_sideways_at_360_px(live_server, browser, artifacts, demo_job, width):
     from qa.models import Wall
 
-    ctx = browser.new_context(viewport={"width": width, "height": 780}, device_scale_factor=2, is_mobile=True,
-                              has_touch=True)
+    ctx = browser.new_context(
+        viewport={"width": width, "height": 780}, device_scale_factor=2, is_mobile=True, has_touch=True
+    )
     ctx.set_default_timeout(15000)
     try:
         page = ctx.new_page()
@@ -66,8 +70,12 @@ def test_pages_do_not_scroll_sideways_at_360_px(live_server, browser, artifacts,
         overflow["login"] = page.evaluate("() => document.documentElement.scrollWidth")
         login(page, live_server.url, "inspector", DEMO_PASSWORD)
         corridor = Wall.objects.get(job=demo_job, tag="2-CN")  # the longest labels: doors and corridor
-        for name, path in [("jobs", "/"), ("job", f"/jobs/{demo_job.id}/"),
-                           ("wall", f"/jobs/{demo_job.id}/walls/{corridor.id}/"), ("docs", "/api/docs/")]:
+        for name, path in [
+            ("jobs", "/"),
+            ("job", f"/jobs/{demo_job.id}/"),
+            ("wall", f"/jobs/{demo_job.id}/walls/{corridor.id}/"),
+            ("docs", "/api/docs/"),
+        ]:
             page.goto(live_server.url + path)
             overflow[name] = page.evaluate("() => document.documentElement.scrollWidth")
             if name == "wall":

@@ -3,6 +3,7 @@ finding, a photo upload cut off halfway, a new service worker version, a crew le
 
 from __future__ import annotations
 
+import base64
 import hashlib
 import re
 
@@ -28,6 +29,28 @@ POST_SYNC = """async ([job, ops]) => {
     body: JSON.stringify({device_id: 'replay', ops})});
   return [r.status, await r.json()];
 }"""
+
+
+def eventually(check, timeout=15.0):
+    """Poll the server's record until ``check()`` is true (the phone syncs in the background)."""
+    import time
+
+    end = time.monotonic() + timeout
+    while not check():
+        if time.monotonic() > end:
+            raise AssertionError("the server never reached the expected state")
+        time.sleep(0.1)
+
+
+def close(ctx):
+    """Leave no request in flight: with in-memory SQLite the live server shares the test's connection,
+    so a request still running when the test database is flushed fails the flush."""
+    import time
+
+    for page in ctx.pages:
+        close(phone)
+    ctx.close()
+    time.sleep(0.5)
 
 
 def new_phone(browser):
@@ -57,6 +80,7 @@ def test_replayed_outbox_makes_no_twins(live_server, phone, world):
     page.wait_for_function(ALL_SENT)
     assert Finding.objects.count() == 2
     assert Event.objects.filter(verb="finding.created").count() == 2
+    close(phone)
 
 
 def test_two_devices_edit_same_finding_conflict_kept_and_resolved(live_server, browser, world, api, artifacts):
@@ -97,16 +121,15 @@ def test_two_devices_edit_same_finding_conflict_kept_and_resolved(live_server, b
     page.wait_for_selector(f"[data-conflict='{conflict.id}']")
     page.screenshot(path=str(artifacts / "walk-conflict.png"))
     page.click(f"[data-conflict='{conflict.id}'] [data-keep='device']")
-    page.wait_for_function(ALL_SENT)
     page.wait_for_function("() => !document.querySelector('[data-conflicts]')")
+    eventually(lambda: Conflict.objects.get().resolution != "")
+    page.wait_for_function(ALL_SENT)
     conflict.refresh_from_db()
     finding.refresh_from_db()
-    from qa.models import SyncOperation
-    print([o.result for o in SyncOperation.objects.filter(kind="conflict.resolve")])
     assert conflict.resolution == "device" and conflict.resolved_by == world.inspector
     assert finding.note == "second phone" and finding.width_m == pytest.approx(0.012)
     for ctx, _ in pages:
-        ctx.close()
+        close(ctx)
 
 
 def test_photo_upload_cut_off_resumes_byte_identical(live_server, phone, world, tmp_path):
@@ -140,12 +163,14 @@ def test_photo_upload_cut_off_resumes_byte_identical(live_server, phone, world, 
     page.click("[data-sync-now]")
     page.wait_for_function(ALL_SENT)
     photo = Photo.objects.get()
-    stored = photo.image.open("rb").read()
+    with photo.image.open("rb") as fh:
+        stored = fh.read()
     assert hashlib.sha256(stored).hexdigest() == device_sha == photo.received_sha256 == photo.sha256
     assert not PhotoUpload.objects.exists()
+    close(phone)
 
 
-def test_new_service_worker_waits_for_the_user(live_server, phone, world):
+def test_new_service_worker_waits_for_the_user(live_server, browser, phone, world):
     from pathlib import Path
 
     page = phone.new_page()
@@ -156,9 +181,18 @@ def test_new_service_worker_waits_for_the_user(live_server, phone, world):
     source = (Path(__file__).resolve().parents[2] / "static" / "root" / "sw.js").read_text()
     newer = source.replace('const VERSION = "', 'const VERSION = "next-', 1)
     assert newer != source
-    phone.route("**/sw.js", lambda route: route.fulfill(status=200, body=newer,
-                                                        headers={"Content-Type": "text/javascript",
-                                                                 "Cache-Control": "no-cache"}))
+    # The worker's script is fetched by the browser, not the page: intercept it at the browser level.
+    cdp = browser.new_browser_cdp_session()
+
+    def serve_newer(event):
+        cdp.send("Fetch.fulfillRequest", {
+            "requestId": event["requestId"], "responseCode": 200,
+            "responseHeaders": [{"name": "Content-Type", "value": "text/javascript"},
+                                {"name": "Cache-Control", "value": "no-cache"}],
+            "body": base64.b64encode(newer.encode()).decode()})
+
+    cdp.on("Fetch.requestPaused", serve_newer)
+    cdp.send("Fetch.enable", {"patterns": [{"urlPattern": "*/sw.js*"}]})
     page.evaluate("() => navigator.serviceWorker.getRegistration().then((r) => r.update())")
     page.wait_for_selector("[data-sw-notice][data-sw-state='update']")
     old = page.evaluate("() => new Promise((ok) => { const c = new MessageChannel(); navigator.serviceWorker.controller.postMessage({type: 'version'}); navigator.serviceWorker.addEventListener('message', (e) => e.data.type === 'version' && ok(e.data.version), {once: true}); })")
@@ -168,6 +202,9 @@ def test_new_service_worker_waits_for_the_user(live_server, phone, world):
     page.wait_for_function("() => navigator.serviceWorker.controller !== null")
     now = page.evaluate("() => new Promise((ok) => { navigator.serviceWorker.addEventListener('message', (e) => e.data.type === 'version' && ok(e.data.version)); navigator.serviceWorker.controller.postMessage({type: 'version'}); })")
     assert now.startswith("next-")
+    cdp.send("Fetch.disable")
+    cdp.detach()
+    close(phone)
 
 
 def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(live_server, browser, world, api, tmp_path, artifacts):
@@ -194,11 +231,12 @@ def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(live_server, browser
     page.screenshot(path=str(artifacts / "walk-crew-fix.png"))
     page.click("[data-mark-fixed]")
     page.wait_for_selector("[data-finding-status='fixed']")
+    eventually(lambda: Photo.objects.exists() and Finding.objects.get(pk=elec.pk).status == "fixed")
     page.wait_for_function(ALL_SENT)
     elec.refresh_from_db()
     assert elec.status == "fixed" and elec.fixed_by == world.electrician
     assert Photo.objects.get().purpose == "fix"
-    ctx.close()
+    close(ctx)
 
     ctx = new_phone(browser)
     page = ctx.new_page()
@@ -209,7 +247,6 @@ def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(live_server, browser
     assert page.locator("[data-photo-state='server']").count() == 1
     page.click("[data-verify]")
     page.wait_for_selector("[data-finding-status='verified']")
+    eventually(lambda: Finding.objects.get(pk=elec.pk).status == "verified")
     page.wait_for_function(ALL_SENT)
-    elec.refresh_from_db()
-    assert elec.status == "verified"
-    ctx.close()
+    close(ctx)

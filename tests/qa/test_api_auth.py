@@ -90,7 +90,9 @@ def test_session_api_needs_csrf(world):
     # The app uses session auth: a forged cross-site POST without the CSRF token is refused.
     client = APIClient(enforce_csrf_checks=True)
     client.force_login(world.inspector)
-    r = client.patch(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/", {"location": "forged"}, format="json")
+    r = client.patch(
+        f"/api/jobs/{world.job.id}/walls/{world.wall.id}/", {"location": "forged"}, format="json"
+    )
     assert r.status_code == 403 and "CSRF" in r.json()["detail"]
     world.wall.refresh_from_db()
     assert world.wall.location == "between 201 and 202"

@@ -10,7 +10,14 @@ from qa.models.events import AppendOnlyError
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 
 def as_role(world, api, role):
@@ -24,11 +31,17 @@ def url(job) -> str:
 def test_a_change_shows_in_the_trail_newest_first(world, api):
     client = api(world.inspector)
     point = world.wall.seal_points.first()
-    client.patch(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/seal-points/{point.id}/", {"status": "pass"},
-                 format="json")
+    client.patch(
+        f"/api/jobs/{world.job.id}/walls/{world.wall.id}/seal-points/{point.id}/",
+        {"status": "pass"},
+        format="json",
+    )
     client.patch(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/", {"location": "moved"}, format="json")
     events = client.get(url(world.job)).json()["results"]
-    assert [(e["verb"], e["actor"]) for e in events] == [("wall.changed", "insp"), ("sealpoint.checked", "insp")]
+    assert [(e["verb"], e["actor"]) for e in events] == [
+        ("wall.changed", "insp"),
+        ("sealpoint.checked", "insp"),
+    ]
     filtered = client.get(url(world.job), {"target_type": "sealpoint", "target_id": point.id}).json()
     assert [e["data"] for e in filtered["results"]] == [{"from": "unchecked", "to": "pass"}]
 

@@ -33,15 +33,31 @@ def point_of(wall, fragment: str = "bottom") -> SealPoint:
 
 def slit(world, **over) -> dict:
     """A 6 mm × 900 mm slit under face A, in the metric job's units (mm)."""
-    body = {"wall": world.wall.id, "seal_point": point_of(world.wall).id, "kind": "slit", "face": "a",
-            "width": 6, "length": 900, "depth": 15.9, "trade": "drywall", "note": "Bead missing under board"}
+    body = {
+        "wall": world.wall.id,
+        "seal_point": point_of(world.wall).id,
+        "kind": "slit",
+        "face": "a",
+        "width": 6,
+        "length": 900,
+        "depth": 15.9,
+        "trade": "drywall",
+        "note": "Bead missing under board",
+    }
     body.update(over)
     return {k: v for k, v in body.items() if v is not ...}
 
 
 def make_finding(world, trade="electrical", **over) -> Finding:
-    fields = dict(job=world.job, wall=world.wall, kind="hole", face="a", diameter_m=0.012, trade=trade,
-                  created_by=world.inspector)
+    fields = dict(
+        job=world.job,
+        wall=world.wall,
+        kind="hole",
+        face="a",
+        diameter_m=0.012,
+        trade=trade,
+        created_by=world.inspector,
+    )
     fields.update(over)
     return Finding.objects.create(**fields)
 
@@ -74,7 +90,9 @@ def test_inspector_records_a_slit_in_mm_stored_in_metres(world, api):
 def test_imperial_job_round_trips_inches(world, api):
     world.job.units = "imperial"
     world.job.save()
-    r = api(world.inspector).post(url(world.job), slit(world, width=0.25, length=36, depth=...), format="json")
+    r = api(world.inspector).post(
+        url(world.job), slit(world, width=0.25, length=36, depth=...), format="json"
+    )
     assert r.status_code == 201, r.json()
     finding = Finding.objects.get(pk=r.json()["id"])
     assert finding.width_m == pytest.approx(0.00635, rel=1e-12)  # 0.25 in × 25.4 mm/in
@@ -86,14 +104,18 @@ def test_imperial_job_round_trips_inches(world, api):
 
 def test_open_area_may_be_wider_than_the_wall_is_thick(world, api):
     # The wall type is 120 mm thick; only an open area may have a 200 mm "gap".
-    r = api(world.inspector).post(url(world.job), slit(world, kind="open_area", width=200, length=300),
-                                  format="json")
+    r = api(world.inspector).post(
+        url(world.job), slit(world, kind="open_area", width=200, length=300), format="json"
+    )
     assert r.status_code == 201, r.json()
 
 
 def test_bridge_is_through_the_wall(world, api):
-    r = api(world.inspector).post(url(world.job), slit(world, kind="bridge", face="through", width=...,
-                                                       length=..., depth=...), format="json")
+    r = api(world.inspector).post(
+        url(world.job),
+        slit(world, kind="bridge", face="through", width=..., length=..., depth=...),
+        format="json",
+    )
     assert r.status_code == 201, r.json()
     assert Finding.objects.get(pk=r.json()["id"]).face == "through"
 
@@ -103,7 +125,9 @@ def test_list_filters_by_trade_status_wall_and_level(world, api):
     make_finding(world, "drywall", status="fixed")
     client = api(world.owner)
     assert client.get(url(world.job)).json()["count"] == 2
-    assert [f["trade"] for f in client.get(url(world.job), {"trade": "drywall"}).json()["results"]] == ["drywall"]
+    assert [f["trade"] for f in client.get(url(world.job), {"trade": "drywall"}).json()["results"]] == [
+        "drywall"
+    ]
     assert client.get(url(world.job), {"status": "fixed"}).json()["count"] == 1
     assert client.get(url(world.job), {"level": "2"}).json()["count"] == 2
     assert client.get(url(world.job), {"level": "7"}).json()["count"] == 0
@@ -163,15 +187,16 @@ def test_bad_input_is_refused_naming_field_and_rule(world, api, change, field, r
 
 
 def test_nan_literal_in_json_is_refused(world, api):
-    body = '{"wall": %d, "kind": "slit", "width": NaN, "length": 900, "trade": "drywall"}' % world.wall.id
+    body = f'{{"wall": {world.wall.id}, "kind": "slit", "width": NaN, "length": 900, "trade": "drywall"}}'
     r = api(world.inspector).post(url(world.job), body, content_type="application/json")
     assert r.status_code == 400 and "JSON parse error" in r.json()["detail"]
     assert Finding.objects.count() == 0
 
 
 def test_seal_point_of_another_wall_is_refused(world, api):
-    second = Wall.objects.create(job=world.job, wall_type=world.wall_type, tag="2-02", level="2",
-                                 length_m=4, height_m=2.7)
+    second = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-02", level="2", length_m=4, height_m=2.7
+    )
     second.add_template_seal_points()
     r = api(world.inspector).post(url(world.job), slit(world, seal_point=point_of(second).id), format="json")
     assert r.status_code == 400 and r.json() == {"seal_point": ["belongs to another wall"]}
@@ -194,8 +219,9 @@ def test_edit_that_breaks_a_rule_changes_nothing(world, api):
     assert r.status_code == 400 and "perimeter" in r.json()["length"][0]
     r = client.patch(url(world.job, finding.pk), {"wall": world.other_wall.id}, format="json")
     assert r.status_code == 400
-    second = Wall.objects.create(job=world.job, wall_type=world.wall_type, tag="2-02", level="2",
-                                 length_m=4, height_m=2.7)
+    second = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-02", level="2", length_m=4, height_m=2.7
+    )
     r = client.patch(url(world.job, finding.pk), {"wall": second.id}, format="json")
     assert r.status_code == 400 and r.json()["wall"] == ["a finding cannot move to another wall"]
     finding.refresh_from_db()
@@ -235,8 +261,14 @@ def test_replayed_create_with_same_client_id_gives_one_finding(world, api):
 
 
 def test_client_id_used_in_another_job_is_refused(world, api):
-    theirs = Finding.objects.create(job=world.other_job, wall=world.other_wall, kind="hole", diameter_m=0.01,
-                                    trade="electrical", created_by=world.outsider)
+    theirs = Finding.objects.create(
+        job=world.other_job,
+        wall=world.other_wall,
+        kind="hole",
+        diameter_m=0.01,
+        trade="electrical",
+        created_by=world.outsider,
+    )
     r = api(world.inspector).post(url(world.job), slit(world, client_id=str(theirs.client_id)), format="json")
     assert r.status_code == 400 and r.json() == {"client_id": ["is already used"]}
     assert Finding.objects.filter(job=world.job).count() == 0
@@ -246,8 +278,14 @@ def test_client_id_used_in_another_job_is_refused(world, api):
 
 
 def test_another_jobs_finding_is_404_through_this_job(world, api):
-    theirs = Finding.objects.create(job=world.other_job, wall=world.other_wall, kind="hole", diameter_m=0.01,
-                                    trade="electrical", created_by=world.outsider)
+    theirs = Finding.objects.create(
+        job=world.other_job,
+        wall=world.other_wall,
+        kind="hole",
+        diameter_m=0.01,
+        trade="electrical",
+        created_by=world.outsider,
+    )
     client = api(world.inspector)
     assert client.get(url(world.job, theirs.pk)).status_code == 404
     assert client.patch(url(world.job, theirs.pk), {"note": "x"}, format="json").status_code == 404
@@ -262,8 +300,10 @@ def test_unknown_finding_is_404(world, api):
     assert api(world.inspector).get(url(world.job, 999_999)).status_code == 404
 
 
-@pytest.mark.parametrize("method, path", [("put", ()), ("delete", ()), ("patch", ()), ("get", ("{f}", "fix")),
-                                          ("put", ("{f}", "verify"))])
+@pytest.mark.parametrize(
+    "method, path",
+    [("put", ()), ("delete", ()), ("patch", ()), ("get", ("{f}", "fix")), ("put", ("{f}", "verify"))],
+)
 def test_wrong_method_is_405(world, api, method, path):
     finding = make_finding(world)
     target = url(world.job, *[p.format(f=finding.pk) for p in path])
@@ -275,12 +315,39 @@ def test_wrong_method_is_405(world, api, method, path):
 
 # --- roles (DESIGN.md, Roles) -----------------------------------------------------------------
 
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-EDIT = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+EDIT = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 # The finding is electrical; "crew" is the electrical crew lead, "crew_other_trade" the drywaller.
-FIX = {"inspector": 200, "crew": 200, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
-VERIFY = {"inspector": 200, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404,
-          "anonymous": 403}
+FIX = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
+VERIFY = {
+    "inspector": 200,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 
 @pytest.mark.parametrize("role", ROLES)
@@ -325,8 +392,9 @@ def test_who_edits_and_removes_findings(world, api, role):
 def test_who_marks_fixed(world, api, role):
     finding = make_finding(world, "electrical")
     user = world.users()[role] if role != "anonymous" else None
-    r = as_role(world, api, role).post(url(world.job, finding.pk, "fix"), {"note": "Putty pad fitted"},
-                                       format="json")
+    r = as_role(world, api, role).post(
+        url(world.job, finding.pk, "fix"), {"note": "Putty pad fitted"}, format="json"
+    )
     assert r.status_code == FIX[role]
     finding.refresh_from_db()
     if FIX[role] == 200:
@@ -340,8 +408,10 @@ def test_who_marks_fixed(world, api, role):
 
 
 @pytest.mark.parametrize("role", ROLES)
-@pytest.mark.parametrize("step, start, after", [("verify", "fixed", "verified"), ("reopen", "fixed", "reopened"),
-                                                ("reopen", "verified", "reopened")])
+@pytest.mark.parametrize(
+    "step, start, after",
+    [("verify", "fixed", "verified"), ("reopen", "fixed", "reopened"), ("reopen", "verified", "reopened")],
+)
 def test_who_verifies_and_reopens(world, api, role, step, start, after):
     finding = make_finding(world, "electrical", status=start)
     r = as_role(world, api, role).post(url(world.job, finding.pk, step), {}, format="json")
@@ -357,8 +427,10 @@ def test_who_verifies_and_reopens(world, api, role, step, start, after):
         assert Event.objects.count() == 0
 
 
-@pytest.mark.parametrize("step, start", [("verify", "open"), ("fix", "fixed"), ("fix", "verified"),
-                                         ("reopen", "open"), ("verify", "verified")])
+@pytest.mark.parametrize(
+    "step, start",
+    [("verify", "open"), ("fix", "fixed"), ("fix", "verified"), ("reopen", "open"), ("verify", "verified")],
+)
 def test_step_the_status_does_not_allow_is_409(world, api, step, start):
     finding = make_finding(world, status=start)
     r = api(world.inspector).post(url(world.job, finding.pk, step), {}, format="json")
@@ -378,14 +450,30 @@ def test_step_with_stale_version_is_409(world, api):
 
 def test_full_lifecycle_leaves_an_audit_trail(world, api):
     finding = make_finding(world)
-    assert api(world.electrician).post(url(world.job, finding.pk, "fix"), {}, format="json").status_code == 200
-    assert api(world.inspector).post(url(world.job, finding.pk, "reopen"), {"note": "still open at top"},
-                                     format="json").status_code == 200
-    assert api(world.electrician).post(url(world.job, finding.pk, "fix"), {"version": 3},
-                                       format="json").status_code == 200
-    assert api(world.inspector).post(url(world.job, finding.pk, "verify"), {}, format="json").status_code == 200
+    assert (
+        api(world.electrician).post(url(world.job, finding.pk, "fix"), {}, format="json").status_code == 200
+    )
+    assert (
+        api(world.inspector)
+        .post(url(world.job, finding.pk, "reopen"), {"note": "still open at top"}, format="json")
+        .status_code
+        == 200
+    )
+    assert (
+        api(world.electrician)
+        .post(url(world.job, finding.pk, "fix"), {"version": 3}, format="json")
+        .status_code
+        == 200
+    )
+    assert (
+        api(world.inspector).post(url(world.job, finding.pk, "verify"), {}, format="json").status_code == 200
+    )
     finding.refresh_from_db()
     assert finding.status == "verified" and finding.version == 5
     verbs = list(Event.objects.filter(target_id=str(finding.pk)).values_list("verb", "actor__username"))
-    assert verbs == [("finding.fixed", "elec"), ("finding.reopened", "insp"), ("finding.fixed", "elec"),
-                     ("finding.verified", "insp")]
+    assert verbs == [
+        ("finding.fixed", "elec"),
+        ("finding.reopened", "insp"),
+        ("finding.fixed", "elec"),
+        ("finding.verified", "insp"),
+    ]

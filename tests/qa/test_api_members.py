@@ -10,9 +10,22 @@ from qa.models import Event, Member
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-MANAGE = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404,
-          "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+MANAGE = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 
 def as_role(world, api, role):
@@ -25,7 +38,9 @@ def url(job, *rest) -> str:
 
 @pytest.fixture
 def newcomer(db):
-    return get_user_model().objects.create_user("plum", password="x-y-z-123456", first_name="Pia", last_name="Lum")
+    return get_user_model().objects.create_user(
+        "plum", password="x-y-z-123456", first_name="Pia", last_name="Lum"
+    )
 
 
 def member_of(world, user) -> Member:
@@ -33,8 +48,9 @@ def member_of(world, user) -> Member:
 
 
 def test_inspector_adds_a_crew_lead_who_then_sees_the_job(world, api, newcomer):
-    r = api(world.inspector).post(url(world.job), {"username": "plum", "role": "crew", "trade": "plumbing"},
-                                  format="json")
+    r = api(world.inspector).post(
+        url(world.job), {"username": "plum", "role": "crew", "trade": "plumbing"}, format="json"
+    )
     assert r.status_code == 201, r.json()
     assert r.json()["name"] == "Pia Lum"
     member = member_of(world, newcomer)
@@ -103,8 +119,9 @@ def test_another_jobs_member_is_404(world, api):
     assert theirs.active
 
 
-@pytest.mark.parametrize("method, on_item", [("put", False), ("delete", False), ("delete", True),
-                                             ("post", True)])
+@pytest.mark.parametrize(
+    "method, on_item", [("put", False), ("delete", False), ("delete", True), ("post", True)]
+)
 def test_wrong_method_is_405(world, api, method, on_item):
     member = member_of(world, world.owner)
     target = url(world.job, member.pk) if on_item else url(world.job)

@@ -10,8 +10,22 @@ from qa.models import Event, Opening
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-EDIT = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+EDIT = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 DOOR_KEYS = {t.key for t in template_for("door")}
 
 
@@ -48,8 +62,9 @@ def test_first_door_brings_the_door_checklist_once(world, api):
 
 
 def test_window_brings_no_door_checklist(world, api):
-    r = api(world.inspector).post(url(world.job, world.wall), body(kind="window", rating=...,
-                                                                   tl=[20.0] * 21), format="json")
+    r = api(world.inspector).post(
+        url(world.job, world.wall), body(kind="window", rating=..., tl=[20.0] * 21), format="json"
+    )
     assert r.status_code == 201, r.json()
     assert door_points(world.wall) == set()
 
@@ -95,7 +110,9 @@ def test_bad_input_is_refused_naming_field_and_rule(world, api, change, field, r
 def test_update_and_remove_write_events(world, api):
     opening = Opening.objects.create(wall=world.wall, width_m=0.9, height_m=2.1, rating=30)
     client = api(world.inspector)
-    assert client.patch(url(world.job, world.wall, opening.pk), {"rating": 35}, format="json").status_code == 200
+    assert (
+        client.patch(url(world.job, world.wall, opening.pk), {"rating": 35}, format="json").status_code == 200
+    )
     r = client.patch(url(world.job, world.wall, opening.pk), {"width": -1, "label": "x"}, format="json")
     assert r.status_code == 400
     assert client.delete(url(world.job, world.wall, opening.pk)).status_code == 204
@@ -143,8 +160,9 @@ def test_who_adds_changes_and_removes_openings(world, api, role):
     opening = Opening.objects.create(wall=world.wall, width_m=0.9, height_m=2.1, rating=30)
     client = as_role(world, api, role)
     assert client.post(url(world.job, world.wall), body(), format="json").status_code == (EDIT[role] or 201)
-    assert client.patch(url(world.job, world.wall, opening.pk), {"rating": 40},
-                        format="json").status_code == (EDIT[role] or 200)
+    assert client.patch(
+        url(world.job, world.wall, opening.pk), {"rating": 40}, format="json"
+    ).status_code == (EDIT[role] or 200)
     assert client.delete(url(world.job, world.wall, opening.pk)).status_code == (EDIT[role] or 204)
     opening.refresh_from_db()
     if role == "inspector":

@@ -17,9 +17,23 @@ from qa.models import Event, Finding, Photo
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
 # Upload of a photo of an electrical finding ("crew" is the electrical lead).
-ADD = {"inspector": 201, "crew": 201, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+ADD = {
+    "inspector": 201,
+    "crew": 201,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 GPS_IFD = 0x8825
 
 
@@ -55,8 +69,14 @@ def upload(client, world, of_finding=None, **over):
 
 @pytest.fixture
 def finding(world):
-    return Finding.objects.create(job=world.job, wall=world.wall, kind="hole", diameter_m=0.012,
-                                  trade="electrical", created_by=world.inspector)
+    return Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        kind="hole",
+        diameter_m=0.012,
+        trade="electrical",
+        created_by=world.inspector,
+    )
 
 
 def test_inspector_uploads_a_photo_that_is_stored_clean(world, api, finding):
@@ -64,8 +84,12 @@ def test_inspector_uploads_a_photo_that_is_stored_clean(world, api, finding):
     r = upload(api(world.inspector), world, finding, id=photo_id, image=jpeg(gps=True))
     assert r.status_code == 201, r.json()
     photo = Photo.objects.get(pk=photo_id)
-    assert (photo.wall, photo.finding, photo.purpose, photo.uploaded_by) == \
-        (world.wall, finding, "defect", world.inspector)
+    assert (photo.wall, photo.finding, photo.purpose, photo.uploaded_by) == (
+        world.wall,
+        finding,
+        "defect",
+        world.inspector,
+    )
     assert (photo.width, photo.height, photo.original_format) == (64, 48, "JPEG")
     with photo.image.open("rb") as fh:
         stored = fh.read()
@@ -89,8 +113,10 @@ def test_same_photo_id_uploaded_twice_is_one_photo(world, api, finding):
 
 
 def test_photo_id_of_another_job_is_refused(world, api):
-    theirs = upload(api(world.outsider), world.__class__(**{**world.__dict__, "job": world.other_job,
-                                                             "wall": world.other_wall}))
+    theirs = upload(
+        api(world.outsider),
+        world.__class__(**{**world.__dict__, "job": world.other_job, "wall": world.other_wall}),
+    )
     assert theirs.status_code == 201
     r = upload(api(world.inspector), world, id=theirs.json()["id"])
     assert r.status_code == 400 and r.json() == {"id": ["is already used"]}
@@ -105,11 +131,14 @@ def test_crew_photo_is_a_fix_photo_of_a_finding(world, api, finding):
     assert r.status_code == 201 and r.json()["purpose"] == "fix"
 
 
-@pytest.mark.parametrize("image, rule", [
-    (b"<html><script>alert(1)</script></html>", "not a readable image"),
-    (b'<svg xmlns="http://www.w3.org/2000/svg"/>', "not a readable image"),
-    (b"", "empty"),
-])
+@pytest.mark.parametrize(
+    "image, rule",
+    [
+        (b"<html><script>alert(1)</script></html>", "not a readable image"),
+        (b'<svg xmlns="http://www.w3.org/2000/svg"/>', "not a readable image"),
+        (b"", "empty"),
+    ],
+)
 def test_not_an_image_is_refused(world, api, image, rule):
     fake = io.BytesIO(image)
     fake.name = "photo.jpg"
@@ -125,15 +154,18 @@ def test_oversize_photo_is_refused(world, api, settings):
     assert not Photo.objects.exists()
 
 
-@pytest.mark.parametrize("change, field, rule", [
-    ({"image": ...}, "image", "No file was submitted"),
-    ({"wall": ...}, "wall", "give the wall or the finding"),
-    ({"wall": 999_999}, "wall", "Invalid pk"),
-    ({"finding": 999_999}, "finding", "Invalid pk"),
-    ({"purpose": "selfie"}, "purpose", "not a valid choice"),
-    ({"id": "not-a-uuid"}, "id", "valid UUID"),
-    ({"captured_at": "yesterday"}, "captured_at", "Datetime has wrong format"),
-])
+@pytest.mark.parametrize(
+    "change, field, rule",
+    [
+        ({"image": ...}, "image", "No file was submitted"),
+        ({"wall": ...}, "wall", "give the wall or the finding"),
+        ({"wall": 999_999}, "wall", "Invalid pk"),
+        ({"finding": 999_999}, "finding", "Invalid pk"),
+        ({"purpose": "selfie"}, "purpose", "not a valid choice"),
+        ({"id": "not-a-uuid"}, "id", "valid UUID"),
+        ({"captured_at": "yesterday"}, "captured_at", "Datetime has wrong format"),
+    ],
+)
 def test_bad_fields_are_refused(world, api, change, field, rule):
     r = upload(api(world.inspector), world, **change)
     assert r.status_code == 400 and rule in str(r.json()[field]), r.json()
@@ -144,13 +176,21 @@ def test_wall_and_finding_of_another_job_or_wall_are_refused(world, api, finding
     client = api(world.inspector)
     r = upload(client, world, wall=world.other_wall.pk)
     assert r.status_code == 400 and "Invalid pk" in r.json()["wall"][0]
-    theirs = Finding.objects.create(job=world.other_job, wall=world.other_wall, kind="hole", diameter_m=0.01,
-                                    trade="electrical", created_by=world.outsider)
+    theirs = Finding.objects.create(
+        job=world.other_job,
+        wall=world.other_wall,
+        kind="hole",
+        diameter_m=0.01,
+        trade="electrical",
+        created_by=world.outsider,
+    )
     r = upload(client, world, theirs)
     assert r.status_code == 400 and "Invalid pk" in r.json()["finding"][0]
     from qa.models import Wall
-    second = Wall.objects.create(job=world.job, wall_type=world.wall_type, tag="2-02", level="2", length_m=4,
-                                 height_m=2.7)
+
+    second = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-02", level="2", length_m=4, height_m=2.7
+    )
     r = upload(client, world, finding, wall=second.pk)
     assert r.status_code == 400 and r.json() == {"wall": ["is not the wall of this finding"]}
     assert not Photo.objects.exists()
@@ -161,7 +201,11 @@ def test_file_view_checks_membership(world, api, client, finding):
     path = f"/jobs/{world.job.id}/photos/{photo_id}/"
     client.force_login(world.owner)
     r = client.get(path + "image")
-    assert r.status_code == 200 and r["Content-Type"] == "image/jpeg" and r["Cache-Control"].startswith("private")
+    assert (
+        r.status_code == 200
+        and r["Content-Type"] == "image/jpeg"
+        and r["Cache-Control"].startswith("private")
+    )
     assert b"".join(r.streaming_content)[:2] == b"\xff\xd8"
     r.close()
     r = client.get(path + "thumb")
@@ -193,7 +237,9 @@ def test_another_jobs_photo_is_404(world, api):
     assert not Photo.objects.get(pk=theirs).removed
 
 
-@pytest.mark.parametrize("method, on_item", [("put", False), ("delete", False), ("patch", True), ("put", True)])
+@pytest.mark.parametrize(
+    "method, on_item", [("put", False), ("delete", False), ("patch", True), ("put", True)]
+)
 def test_wrong_method_is_405(world, api, method, on_item):
     photo_id = upload(api(world.inspector), world).json()["id"]
     target = url(world.job, photo_id) if on_item else url(world.job)
@@ -219,8 +265,14 @@ def test_who_adds_photos_of_a_finding(world, api, finding, role):
 @pytest.mark.parametrize("role", ROLES)
 def test_who_removes_photos(world, api, role):
     photo_id = upload(api(world.inspector), world).json()["id"]
-    expected = {"inspector": 204, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404,
-                "anonymous": 403}[role]
+    expected = {
+        "inspector": 204,
+        "crew": 403,
+        "crew_other_trade": 403,
+        "owner": 403,
+        "outsider": 404,
+        "anonymous": 403,
+    }[role]
     assert as_role(world, api, role).delete(url(world.job, photo_id)).status_code == expected
     photo = Photo.objects.get(pk=photo_id)
     assert photo.removed is (role == "inspector")

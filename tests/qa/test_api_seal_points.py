@@ -9,8 +9,22 @@ from qa.models import Event, SealPoint
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-EDIT = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+EDIT = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 
 def as_role(world, api, role):
@@ -22,8 +36,14 @@ def url(job, wall, *rest) -> str:
 
 
 def body(**over) -> dict:
-    data = {"label": "Sprinkler pipe at head", "face": "through", "trade": "plumbing", "gap_kind": "ring",
-            "correct": "Annular space sealed both faces", "usual_defect": "Open ring"}
+    data = {
+        "label": "Sprinkler pipe at head",
+        "face": "through",
+        "trade": "plumbing",
+        "gap_kind": "ring",
+        "correct": "Annular space sealed both faces",
+        "usual_defect": "Open ring",
+    }
     data.update(over)
     return {k: v for k, v in data.items() if v is not ...}
 
@@ -84,8 +104,9 @@ def test_bad_input_is_refused_naming_field_and_rule(world, api, change, field, r
 
 def test_bad_tick_changes_nothing(world, api):
     point = first_point(world)
-    r = api(world.inspector).patch(url(world.job, world.wall, point.pk), {"status": "ok", "label": "renamed"},
-                                   format="json")
+    r = api(world.inspector).patch(
+        url(world.job, world.wall, point.pk), {"status": "ok", "label": "renamed"}, format="json"
+    )
     assert r.status_code == 400
     point.refresh_from_db()
     assert point.status == "unchecked" and point.label != "renamed" and point.version == 1
@@ -93,8 +114,11 @@ def test_bad_tick_changes_nothing(world, api):
 
 def test_read_only_fields_are_ignored(world, api):
     point = first_point(world)
-    r = api(world.inspector).patch(url(world.job, world.wall, point.pk),
-                                   {"wall": world.other_wall.id, "version": 99, "template_key": "x"}, format="json")
+    r = api(world.inspector).patch(
+        url(world.job, world.wall, point.pk),
+        {"wall": world.other_wall.id, "version": 99, "template_key": "x"},
+        format="json",
+    )
     assert r.status_code == 200
     point.refresh_from_db()
     assert point.wall == world.wall and point.version == 2 and point.template_key != "x"
@@ -114,7 +138,10 @@ def test_seal_point_of_another_wall_or_job_is_404(world, api):
     client = api(world.inspector)
     theirs = world.other_wall.seal_points.first()
     assert client.get(url(world.job, world.wall, theirs.pk)).status_code == 404
-    assert client.patch(url(world.job, world.wall, theirs.pk), {"status": "pass"}, format="json").status_code == 404
+    assert (
+        client.patch(url(world.job, world.wall, theirs.pk), {"status": "pass"}, format="json").status_code
+        == 404
+    )
     assert client.get(url(world.job, world.other_wall)).status_code == 404
     assert client.get(url(world.job, world.other_wall, theirs.pk)).status_code == 404
     theirs.refresh_from_db()
@@ -140,8 +167,9 @@ def test_who_adds_ticks_and_removes_seal_points(world, api, role):
     before = world.wall.seal_points.count()
     client = as_role(world, api, role)
     assert client.post(url(world.job, world.wall), body(), format="json").status_code == (EDIT[role] or 201)
-    assert client.patch(url(world.job, world.wall, point.pk), {"status": "pass"},
-                        format="json").status_code == (EDIT[role] or 200)
+    assert client.patch(
+        url(world.job, world.wall, point.pk), {"status": "pass"}, format="json"
+    ).status_code == (EDIT[role] or 200)
     assert client.delete(url(world.job, world.wall, point.pk)).status_code == (EDIT[role] or 204)
     point.refresh_from_db()
     if role == "inspector":

@@ -13,8 +13,22 @@ from qa.models import Event, WallType
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-EDIT = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+EDIT = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 FLAT_50 = [18, 22, 26, 29, 32, 35, 38, 41, 44, 47, 48, 49, 50, 51, 52, 52, 52, 52, 52, 52, 52]
 
@@ -28,9 +42,17 @@ def url(job, *rest) -> str:
 
 
 def body(**over) -> dict:
-    data = {"code": "T2", "name": "Steel stud, two layers each face", "construction": "steel_stud",
-            "tl": FLAT_50, "tl_source": "lab", "lab_reference": "Lab report 123 (invented)",
-            "rating_scheme": "stc", "thickness": 150, "fire_rated": True}
+    data = {
+        "code": "T2",
+        "name": "Steel stud, two layers each face",
+        "construction": "steel_stud",
+        "tl": FLAT_50,
+        "tl_source": "lab",
+        "lab_reference": "Lab report 123 (invented)",
+        "rating_scheme": "stc",
+        "thickness": 150,
+        "fire_rated": True,
+    }
     data.update(over)
     return {k: v for k, v in data.items() if v is not ...}
 
@@ -124,8 +146,9 @@ def test_another_jobs_wall_type_is_404(world, api):
     assert theirs.name == "Other"
 
 
-@pytest.mark.parametrize("method, on_item", [("put", False), ("delete", False), ("delete", True),
-                                             ("post", True)])
+@pytest.mark.parametrize(
+    "method, on_item", [("put", False), ("delete", False), ("delete", True), ("post", True)]
+)
 def test_wrong_method_is_405(world, api, method, on_item):
     target = url(world.job, world.wall_type.pk) if on_item else url(world.job)
     assert getattr(api(world.inspector), method)(target, {}, format="json").status_code == 405
@@ -143,8 +166,9 @@ def test_who_sees_wall_types(world, api, role):
 def test_who_adds_and_changes_wall_types(world, api, role):
     client = as_role(world, api, role)
     assert client.post(url(world.job), body(), format="json").status_code == (EDIT[role] or 201)
-    assert client.patch(url(world.job, world.wall_type.pk), {"name": "renamed"},
-                        format="json").status_code == (EDIT[role] or 200)
+    assert client.patch(
+        url(world.job, world.wall_type.pk), {"name": "renamed"}, format="json"
+    ).status_code == (EDIT[role] or 200)
     world.wall_type.refresh_from_db()
     expected = 2 if role == "inspector" else 1
     assert WallType.objects.filter(job=world.job).count() == expected

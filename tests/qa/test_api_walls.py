@@ -13,8 +13,22 @@ from qa.models import Event, SealPoint, Wall
 pytestmark = pytest.mark.django_db
 
 ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404, "anonymous": 403}
-EDIT = {"inspector": None, "crew": 403, "crew_other_trade": 403, "owner": 403, "outsider": 404, "anonymous": 403}
+SEE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 403,
+}
+EDIT = {
+    "inspector": None,
+    "crew": 403,
+    "crew_other_trade": 403,
+    "owner": 403,
+    "outsider": 404,
+    "anonymous": 403,
+}
 
 
 def as_role(world, api, role):
@@ -26,9 +40,18 @@ def url(job, *rest) -> str:
 
 
 def body(world, **over) -> dict:
-    data = {"tag": "2-02", "level": "2", "location": "between 202 and 203", "face_a_label": "Unit 202",
-            "face_b_label": "Unit 203", "length": 7.5, "height": 2.7, "target_rating": 50,
-            "rating_scheme": "stc", "wall_type": world.wall_type.id}
+    data = {
+        "tag": "2-02",
+        "level": "2",
+        "location": "between 202 and 203",
+        "face_a_label": "Unit 202",
+        "face_b_label": "Unit 203",
+        "length": 7.5,
+        "height": 2.7,
+        "target_rating": 50,
+        "rating_scheme": "stc",
+        "wall_type": world.wall_type.id,
+    }
     data.update(over)
     return {k: v for k, v in data.items() if v is not ...}
 
@@ -122,8 +145,9 @@ def test_update_bumps_version_and_records_fields(world, api):
 
 
 def test_bad_update_changes_nothing(world, api):
-    r = api(world.inspector).patch(url(world.job, world.wall.pk), {"height": -1, "location": "moved"},
-                                   format="json")
+    r = api(world.inspector).patch(
+        url(world.job, world.wall.pk), {"height": -1, "location": "moved"}, format="json"
+    )
     assert r.status_code == 400
     world.wall.refresh_from_db()
     assert (world.wall.height_m, world.wall.location, world.wall.version) == (2.7, "between 201 and 202", 1)
@@ -140,7 +164,9 @@ def test_another_jobs_wall_is_404(world, api):
     assert theirs.height_m == 2.7 and not theirs.removed
 
 
-@pytest.mark.parametrize("method, on_item", [("put", False), ("delete", False), ("patch", False), ("post", True)])
+@pytest.mark.parametrize(
+    "method, on_item", [("put", False), ("delete", False), ("patch", False), ("post", True)]
+)
 def test_wrong_method_is_405(world, api, method, on_item):
     target = url(world.job, world.wall.pk) if on_item else url(world.job)
     assert getattr(api(world.inspector), method)(target, {}, format="json").status_code == 405
@@ -157,8 +183,9 @@ def test_who_sees_walls(world, api, role):
 def test_who_adds_changes_and_removes_walls(world, api, role):
     client = as_role(world, api, role)
     assert client.post(url(world.job), body(world), format="json").status_code == (EDIT[role] or 201)
-    assert client.patch(url(world.job, world.wall.pk), {"location": "here"},
-                        format="json").status_code == (EDIT[role] or 200)
+    assert client.patch(url(world.job, world.wall.pk), {"location": "here"}, format="json").status_code == (
+        EDIT[role] or 200
+    )
     assert client.delete(url(world.job, world.wall.pk)).status_code == (EDIT[role] or 204)
     world.wall.refresh_from_db()
     if role == "inspector":

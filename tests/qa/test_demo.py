@@ -16,8 +16,10 @@ JOB = "Harbourline Residences"
 
 
 def counts() -> dict:
-    return {m.__name__: m.objects.count() for m in (Job, Member, WallType, Wall, Opening, SealPoint, Finding,
-                                                     Photo, Event)}
+    return {
+        m.__name__: m.objects.count()
+        for m in (Job, Member, WallType, Wall, Opening, SealPoint, Finding, Photo, Event)
+    }
 
 
 def demo(*extra: str) -> str:
@@ -44,7 +46,11 @@ def test_demo_loads_once_and_twice_changes_nothing():
     assert findings.count() >= 35
     assert findings.values("trade").distinct().count() >= 5
     assert set(findings.values_list("status", flat=True)) >= {"open", "fixed", "verified"}
-    assert set(Member.objects.filter(job=job).values_list("role", flat=True)) == {"inspector", "crew", "owner"}
+    assert set(Member.objects.filter(job=job).values_list("role", flat=True)) == {
+        "inspector",
+        "crew",
+        "owner",
+    }
     # Every finding sits on a wall of the job and, when tied to a seal point, to one of that wall.
     for f in findings.select_related("seal_point"):
         assert f.seal_point is None or f.seal_point.wall_id == f.wall_id

@@ -430,5 +430,5 @@ def test_admin_cannot_delete_a_job_and_its_trail(world, client):
     Event.record(world.job, world.inspector, "wall.created", world.wall)
     client.force_login(admin)
     response = client.post(reverse("admin:qa_job_delete", args=[world.job.pk]), {"post": "yes"})
-    assert response.status_code == 403
+    assert response.status_code == 200 and b"permission to delete" in response.content  # the refusal page
     assert Event.objects.filter(job_id=world.job.pk).exists()

@@ -12,7 +12,7 @@ from __future__ import annotations
 import io
 import struct
 import zlib
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 
 import pillow_heif
 import pytest
@@ -66,7 +66,7 @@ def test_jpeg_is_oriented_gps_stripped_capture_time_kept():
     assert 0x010F not in exif
     assert b"GPS" not in clean.image and b"Phone maker" not in clean.image
     assert exif[DATETIME] == "2026:11:16 09:41:07"
-    assert clean.captured_at == datetime(2026, 11, 16, 9, 41, 7, tzinfo=timezone.utc)
+    assert clean.captured_at == datetime(2026, 11, 16, 9, 41, 7, tzinfo=UTC)
     assert clean.original_format == "JPEG"
     assert clean.received_sha256 != clean.sha256
     with Image.open(io.BytesIO(clean.thumbnail)) as thumb:
@@ -80,7 +80,7 @@ def test_capture_time_with_offset_is_kept_as_an_aware_time():
     out = io.BytesIO()
     half_red().save(out, "JPEG", exif=exif.tobytes())
     clean = clean_photo(out.getvalue())
-    assert clean.captured_at == datetime(2026, 11, 16, 7, 41, 7, tzinfo=timezone.utc)
+    assert clean.captured_at == datetime(2026, 11, 16, 7, 41, 7, tzinfo=UTC)
 
 
 def test_plain_phone_jpeg_is_kept_byte_for_byte():
@@ -129,8 +129,10 @@ def test_large_photo_is_downscaled_to_the_long_edge(settings):
         (b"", "empty"),
         (b"this is a text file, not a photo\n" * 20, "not a readable image"),
         (b"<!DOCTYPE html><html><script>alert(1)</script></html>", "not a readable image"),
-        (b'<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>',
-         "not a readable image"),
+        (
+            b'<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg"><script>alert(1)</script></svg>',
+            "not a readable image",
+        ),
     ],
     ids=["empty", "text", "html-as-jpg", "svg-as-jpg"],
 )
@@ -159,8 +161,12 @@ def png_declaring(width: int, height: int) -> bytes:
         return struct.pack(">I", len(body)) + kind + body + struct.pack(">I", zlib.crc32(kind + body))
 
     ihdr = struct.pack(">IIBBBBB", width, height, 8, 2, 0, 0, 0)
-    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", ihdr) + chunk(b"IDAT", zlib.compress(b"\x00" * 64)) + \
-        chunk(b"IEND", b"")
+    return (
+        b"\x89PNG\r\n\x1a\n"
+        + chunk(b"IHDR", ihdr)
+        + chunk(b"IDAT", zlib.compress(b"\x00" * 64))
+        + chunk(b"IEND", b"")
+    )
 
 
 @pytest.mark.parametrize("side", [100_000, 8_000], ids=["far-over", "just-over"])

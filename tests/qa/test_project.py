@@ -19,8 +19,9 @@ ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymou
 
 def run(*args: str, timeout: float = 120) -> subprocess.CompletedProcess:
     env = {**os.environ, "DJANGO_SETTINGS_MODULE": "qa.settings_test", "PYTHONWARNINGS": "ignore"}
-    return subprocess.run([sys.executable, *args], cwd=ROOT, env=env, capture_output=True, text=True,
-                          timeout=timeout)
+    return subprocess.run(
+        [sys.executable, *args], cwd=ROOT, env=env, capture_output=True, text=True, timeout=timeout
+    )
 
 
 @pytest.mark.django_db
@@ -36,8 +37,12 @@ def test_openapi_schema_builds_and_validates(tmp_path):
     result = run("manage.py", "spectacular", "--validate", "--file", str(out))
     assert result.returncode == 0, result.stderr[-3000:]
     text = out.read_text()
-    for path in ("/api/jobs/{job_pk}/findings/{id}/fix/", "/api/jobs/{job_pk}/walls/{wall_pk}/seal-points/",
-                 "/api/jobs/{job_pk}/photos/", "/api/auth/token/"):
+    for path in (
+        "/api/jobs/{job_pk}/findings/{id}/fix/",
+        "/api/jobs/{job_pk}/walls/{wall_pk}/seal-points/",
+        "/api/jobs/{job_pk}/photos/",
+        "/api/auth/token/",
+    ):
         assert path in text
     # Every object id in our routes is typed (not a bare string the client must guess at).
     own = [line for line in result.stderr.splitlines() if "qa/api/" in line]
@@ -45,7 +50,9 @@ def test_openapi_schema_builds_and_validates(tmp_path):
 
 
 def test_acoustics_imports_without_django():
-    result = run("-c", "import sys, acoustics; print(sorted(m for m in sys.modules if m.split('.')[0] == 'django'))")
+    result = run(
+        "-c", "import sys, acoustics; print(sorted(m for m in sys.modules if m.split('.')[0] == 'django'))"
+    )
     assert result.returncode == 0, result.stderr
     assert result.stdout.strip() == "[]"
 
@@ -59,8 +66,14 @@ def as_role(client, world, role):
     return client
 
 
-MEMBER_PAGE = {"inspector": 200, "crew": 200, "crew_other_trade": 200, "owner": 200, "outsider": 404,
-               "anonymous": 302}
+MEMBER_PAGE = {
+    "inspector": 200,
+    "crew": 200,
+    "crew_other_trade": 200,
+    "owner": 200,
+    "outsider": 404,
+    "anonymous": 302,
+}
 
 
 @pytest.mark.django_db

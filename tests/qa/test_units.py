@@ -32,7 +32,9 @@ def test_to_si_matches_nist_sp_811(value, quantity, system, si):
 
 @pytest.mark.parametrize("value, quantity, system, si", NIST)
 def test_round_trip_is_exact_to_rounding(value, quantity, system, si):
-    assert units.from_si(units.to_si(value, quantity, system), quantity, system) == pytest.approx(value, rel=1e-14)
+    assert units.from_si(units.to_si(value, quantity, system), quantity, system) == pytest.approx(
+        value, rel=1e-14
+    )
 
 
 def test_none_stays_none():
@@ -40,16 +42,19 @@ def test_none_stays_none():
     assert units.fmt(None, "gap", "imperial") == "—"
 
 
-@pytest.mark.parametrize("si, quantity, system, text", [
-    (0.006, "gap", "metric", "6 mm"),
-    (0.00635, "gap", "imperial", "0.25 in"),
-    (0.0159, "gap", "metric", "15.9 mm"),
-    (3.048, "size", "imperial", "10 ft"),
-    (2.74, "size", "metric", "2.74 m"),
-    (0.9, "gap", "metric", "900 mm"),
-    (0.09290304, "area", "imperial", "1 ft²"),
-    (0.5, "area", "metric", "0.5 m²"),
-])
+@pytest.mark.parametrize(
+    "si, quantity, system, text",
+    [
+        (0.006, "gap", "metric", "6 mm"),
+        (0.00635, "gap", "imperial", "0.25 in"),
+        (0.0159, "gap", "metric", "15.9 mm"),
+        (3.048, "size", "imperial", "10 ft"),
+        (2.74, "size", "metric", "2.74 m"),
+        (0.9, "gap", "metric", "900 mm"),
+        (0.09290304, "area", "imperial", "1 ft²"),
+        (0.5, "area", "metric", "0.5 m²"),
+    ],
+)
 def test_fmt_shows_what_a_person_reads(si, quantity, system, text):
     assert units.fmt(si, quantity, system) == text
 
