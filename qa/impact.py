@@ -136,15 +136,21 @@ def predict_curve(layers: dict) -> list:
 
 
 # --------------------------------------------------------------------------- wall inputs
-def _assembly(wall_type, area: float, height: float):
-    """The wall type's layered construction at this wall's size, or None for a lab-only type."""
+def _assembly(wall_type):
+    """The wall type's layered construction as a reference panel, or None for a lab-only type.
+
+    Defect models run on the wall type's own spec (its area, default the 10 m^2 of a laboratory
+    opening), not on each wall's size: a defect's added transmission area scales with the defect, and
+    sharing one panel per wall type lets alike findings on different walls share one computation.
+    The finite-size correction of each wall's actual size is therefore not modelled (it moves the
+    added area by a few dB only below about 125 Hz).
+    """
     import acoustics
 
     if not wall_type.layers:
         return None
-    spec = {**wall_type.layers, "area": min(max(area, 0.5), 1000.0), "height": min(max(height, 0.5), 30.0)}
     try:
-        return acoustics.Assembly.from_dict(spec)
+        return acoustics.Assembly.from_dict(wall_type.layers)
     except acoustics.AcousticsError:
         return None
 
@@ -156,12 +162,21 @@ class _Context:
         wt = wall.wall_type
         self.wall, self.wall_type = wall, wt
         self.area = float(wall.length_m) * float(wall.height_m)
-        self.asm = _assembly(wt, self.area, float(wall.height_m))
-        self.key = (wt.pk, round(self.area, 4), round(float(wall.height_m), 4))
+        self.memo = memo if memo is not None else {}
+        if ("asm", wt.pk) not in self.memo:
+            self.memo[("asm", wt.pk)] = _assembly(wt)
+        self.asm = self.memo[("asm", wt.pk)]
+        self.key = wt.pk
         one_leaf = self.asm is not None and len(self.asm.leaves) == 1
         self.single_leaf = one_leaf or wt.construction == "masonry"
         self.tl = tl_array(wt.tl)
-        self.memo = memo if memo is not None else {}
+
+    def per_m2(self, name: str, make):
+        """A defect's added area per m^2 of affected wall (the models are linear in that area)."""
+        key = (name, self.key)
+        if key not in self.memo:
+            self.memo[key] = make()
+        return self.memo[key]
 
     def board(self, face: int) -> float:
         if self.asm is not None and face < len(self.asm.leaves):
@@ -271,23 +286,29 @@ def finding_leak(f, ctx: _Context):
             else:
                 leak = acoustics.rigid_bridge(ctx.asm, points=count)
             return _relabel(leak, "bridge", label)
-        if f.kind == "missing_insulation":
-            return _relabel(acoustics.insulation_defect(ctx.asm, min(f.area_m2, ctx.asm.area)),
-                            f.kind, label)
-        if f.kind == "channel_short":
-            fraction = min(f.area_m2 / ctx.area, 1.0)
-            return _relabel(acoustics.channel_short_circuit(ctx.asm, fraction), f.kind, label)
-        if f.kind == "missing_layer":
-            return _relabel(acoustics.missing_layer(ctx.asm, 1 if f.face == "b" else 0,
-                                                    min(f.area_m2, ctx.asm.area)), f.kind, label)
+        asm = ctx.asm
+        if f.kind in ("missing_insulation", "channel_short", "missing_layer"):
+            side = 1 if f.face == "b" else 0
+            unit = ctx.per_m2(f"{f.kind}:{side}", {
+                "missing_insulation": lambda: acoustics.insulation_defect(asm, 1.0),
+                "channel_short": lambda: acoustics.Leak.added(
+                    acoustics.channel_short_circuit(asm, 1.0).area / asm.area, kind="channel_short_circuit"),
+                "missing_layer": lambda: acoustics.missing_layer(asm, side, 1.0),
+            }[f.kind])
+            area = min(float(f.area_m2), ctx.area)
+            return acoustics.Leak(unit.area * area, f.kind, label, unit.flags)
         if f.kind == "back_to_back":
             # The lost cavity over the boxes' footprint, plus the recorded box leak through both boxes.
-            boxes = acoustics.back_to_back_boxes(ctx.asm, count=count)
+            one = ctx.per_m2("back_to_back", lambda: acoustics.back_to_back_boxes(asm))
+            boxes = acoustics.Leak(one.area * count, one.kind, "", one.flags)
             depth = f.depth_m or ctx.wall_type.thickness_m
             parts = [boxes.area]
             flags = list(boxes.flags)
             if f.area_m2:
-                hole = acoustics.hole(math.sqrt(4 * f.area_m2 / math.pi), depth).times(count)
+                hkey = ("b2b-hole", f.area_m2, round(depth, 6))
+                if hkey not in memo:
+                    memo[hkey] = acoustics.hole(math.sqrt(4 * f.area_m2 / math.pi), depth)
+                hole = memo[hkey].times(count)
                 parts.append(hole.area)
                 flags += [*hole.flags, "equivalent_hole"]
             return acoustics.Leak.added(np.sum(parts, axis=0), kind=f.kind, label=label,

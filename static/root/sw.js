@@ -1,6 +1,9 @@
 // Sealwalk service worker. One version constant; the app shell is precached from the hashed static
 // URLs named in the walk's shell page; pages are network-first with an offline fallback.
-const VERSION = "walk-2026-1";
+const BUILD = "walk-2026-1";
+// A deploy may register the worker as /sw.js?build=<id>; the id joins the version so caches follow it.
+const BUILD_ID = new URL(self.location.href).searchParams.get("build");
+const VERSION = BUILD_ID ? `${BUILD}+${BUILD_ID}` : BUILD;
 const PREFIX = "sealwalk-";
 const SHELL_CACHE = `${PREFIX}shell-${VERSION}`;
 const PAGES_CACHE = `${PREFIX}pages-${VERSION}`;

@@ -93,8 +93,12 @@ def main() -> None:
     sys.path.insert(0, str(ROOT))
     os.environ.setdefault("DJANGO_SETTINGS_MODULE", "qa.settings_test")
     import django
+    from django.conf import settings
 
     django.setup()
+    # The audit cache holds one entry per wall plus its stamps: the backend must keep more than the
+    # default 300 entries, or a 300-wall job evicts itself on every request (see DEVELOPERS notes).
+    settings.CACHES["default"].setdefault("OPTIONS", {})["MAX_ENTRIES"] = 100_000
     from django.core.cache import cache
     from django.test import Client
     from django.test.utils import setup_test_environment

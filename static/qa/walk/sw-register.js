@@ -29,10 +29,15 @@ function show(text, action) {
   el.dataset.swState = action ? "update" : "ready";
 }
 
+let accepted = false;
+
 function offerUpdate(worker) {
   show("A new version of the walk is ready. Your unsent changes are kept.", {
     label: "Use new version",
-    run: () => worker.postMessage({ type: "skip-waiting" }),
+    run: () => {
+      accepted = true;
+      worker.postMessage({ type: "skip-waiting" });
+    },
   });
 }
 
@@ -41,7 +46,8 @@ export async function registerWorker() {
   const hadController = Boolean(navigator.serviceWorker.controller);
   let reloading = false;
   navigator.serviceWorker.addEventListener("controllerchange", () => {
-    if (hadController && !reloading) {
+    // Only the version the user accepted reloads the page; the first install just takes control.
+    if (accepted && !reloading) {
       reloading = true;
       window.location.reload();
     }
