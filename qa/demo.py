@@ -12,14 +12,12 @@ import random
 from datetime import datetime, timedelta, timezone
 
 from django.contrib.auth import get_user_model
-from django.core.files.base import ContentFile
 from django.db import transaction
 from PIL import Image, ImageDraw, ImageFilter
 
 from .choices import FindingStatus, PhotoPurpose, Role, SealStatus
 from .impact import resolve_wall_type_curve
 from .models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
-from .photos import clean_photo
 
 JOB_NAME = "Harbourline Residences"
 PASSWORD = "walk-the-walls"
@@ -63,11 +61,11 @@ WALL_TYPES = [
 FINDING_PATTERNS = [
     ("slit", "bottom", "a", "drywall", {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
      "Bead missing under the board between two studs."),
-    ("slit", "bottom", "through", "drywall", {"width_m": 0.008, "length_m": 0.9, "depth_m": 0.17},
+    ("slit", "track", "through", "drywall", {"width_m": 0.008, "length_m": 0.9, "depth_m": 0.17},
      "Track not bedded; daylight under the plate on both faces."),
     ("hole", "box", "a", "electrical", {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
      "Knockouts open on the back-box."),
-    ("back_to_back", "box", "through", "electrical", {"area_m2": 0.0006, "depth_m": 0.15},
+    ("back_to_back", "box-spacing", "through", "electrical", {"area_m2": 0.0006, "depth_m": 0.15},
      "Boxes back to back in the same stud bay, no pad."),
     ("ring", "pipe", "through", "plumbing", {"diameter_m": 0.022, "width_m": 0.006, "depth_m": 0.17},
      "Annular space around the supply line left open."),
@@ -80,7 +78,7 @@ FINDING_PATTERNS = [
     ("open_area", "cut", "a", "drywall", {"area_m2": 0.004, "depth_m": 0.0159},
      "Oversized cut-out left by another trade."),
 ]
-DOOR_PATTERN = ("slit", "door", "through", "doors", {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
+DOOR_PATTERN = ("slit", "door-bottom", "through", "doors", {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
                 "Door bottom seal not fitted; 12 mm undercut.")
 
 
@@ -126,15 +124,8 @@ def demo_photo(seed: int, label: str, when: datetime) -> bytes:
 
 
 def _store_photo(job, wall, finding, user, purpose, data: bytes) -> Photo:
-    clean = clean_photo(data)
-    photo = Photo(job=job, wall=wall, finding=finding, purpose=purpose, captured_at=clean.captured_at,
-                  width=clean.width, height=clean.height,
-                  bytes=len(clean.image), sha256=clean.sha256, received_sha256=clean.received_sha256,
-                  original_format=clean.original_format, uploaded_by=user)
-    photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-    photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-    photo.save()
-    return photo
+    return Photo.objects.store(job=job, wall=wall, finding=finding, user=user, purpose=purpose, data=data,
+                               event={"device_id": "demo-phone-1"})
 
 
 def _point(wall: Wall, fragment: str) -> SealPoint | None:

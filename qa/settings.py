@@ -214,6 +214,7 @@ SPECTACULAR_SETTINGS = {
     "VERSION": "1",
     "SERVE_INCLUDE_SCHEMA": False,
     "COMPONENT_SPLIT_REQUEST": True,
+    "ENUM_NAME_OVERRIDES": {"GapKindEnum": "qa.choices.GapKind", "OpeningKindEnum": "qa.choices.OpeningKind"},
 }
 
 # Security headers. HSTS and secure cookies only when served over HTTPS.

@@ -2,8 +2,7 @@
 
 from __future__ import annotations
 
-from django.core.files.base import ContentFile
-from django.db import transaction
+from django.db import IntegrityError, transaction
 from django.http import FileResponse, Http404
 from django.views.decorators.http import require_GET
 from rest_framework import mixins, status, viewsets
@@ -14,7 +13,6 @@ from rest_framework.response import Response
 from ..access import membership, require
 from ..choices import PhotoPurpose, Role
 from ..models import Photo
-from ..photos import clean_photo
 from . import serializers as s
 from .views import JobScopedMixin, _is_uuid
 
@@ -57,29 +55,16 @@ class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMi
                 raise ValidationError({"finding": ["crew photos show the fix of a finding"]})
             require(self.member, "fix", trade=finding.trade)
             purpose = PhotoPurpose.FIX
-        upload = data["image"]
-        clean = clean_photo(upload.read())
-        with transaction.atomic():
-            photo = Photo(
-                job=self.job,
-                wall=data["wall"],
-                finding=finding,
-                purpose=purpose,
+        try:
+            photo = Photo.objects.store(
+                job=self.job, wall=data["wall"], finding=finding, user=request.user, purpose=purpose,
+                data=data["image"].read(), photo_id=data.get("id"), captured_at=data.get("captured_at"),
                 caption=data.get("caption", ""),
-                captured_at=data.get("captured_at") or clean.captured_at,
-                bytes=len(clean.image), width=clean.width, height=clean.height,
-                sha256=clean.sha256,
-                received_sha256=clean.received_sha256,
-                original_format=clean.original_format,
-                uploaded_by=request.user,
             )
-            if data.get("id"):
-                photo.id = data["id"]
-            photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-            photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-            photo.save()
-            self.record("photo.added", photo, {"finding": finding.id if finding else None, "purpose": purpose,
-                                               "sha256": photo.sha256})
+        except IntegrityError:
+            # The same photo id arrived twice at once; the other request stored it first.
+            photo = Photo.objects.get(pk=data["id"], job=self.job)
+            return Response(self.get_serializer(photo).data, status=status.HTTP_200_OK)
         return Response(self.get_serializer(photo).data, status=status.HTTP_201_CREATED)
 
     @transaction.atomic

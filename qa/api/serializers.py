@@ -241,8 +241,6 @@ class FindingSerializer(serializers.ModelSerializer):
         errors = geometry_errors(kind, face, dims, wall)
         if errors:
             raise serializers.ValidationError({SI_TO_API.get(k, k): [v] for k, v in errors.items()})
-        if kind == GapKind.BRIDGE:
-            attrs["face"] = "through"
         return attrs
 
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from django.db import transaction
+from django.db import IntegrityError, transaction
 from django.db.models import Count, Prefetch, Q
 from rest_framework import mixins, status, viewsets
 from rest_framework.decorators import action
@@ -270,13 +270,27 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
 
     def create(self, request, *args, **kwargs):
         client_id = request.data.get("client_id") if hasattr(request.data, "get") else None
-        if client_id:
-            existing = Finding.objects.filter(client_id=str(client_id)).first() if _is_uuid(client_id) else None
-            if existing is not None:
-                if existing.job_id != self.job.id:
-                    raise ValidationError({"client_id": ["is already used"]})
-                return Response(self.get_serializer(existing).data, status=status.HTTP_200_OK)
-        return super().create(request, *args, **kwargs)
+        replay = self._replayed(client_id)
+        if replay is not None:
+            return replay
+        try:
+            return super().create(request, *args, **kwargs)
+        except IntegrityError:
+            # The same client_id arrived twice at once; the other request stored it first.
+            replay = self._replayed(client_id)
+            if replay is None:
+                raise
+            return replay
+
+    def _replayed(self, client_id) -> Response | None:
+        if not client_id or not _is_uuid(client_id):
+            return None
+        existing = Finding.objects.filter(client_id=str(client_id)).first()
+        if existing is None:
+            return None
+        if existing.job_id != self.job.id:
+            raise ValidationError({"client_id": ["is already used"]})
+        return Response(self.get_serializer(existing).data, status=status.HTTP_200_OK)
 
     @transaction.atomic
     def perform_create(self, serializer):

@@ -78,8 +78,6 @@ def geometry_errors(kind: str, face: str, dims: dict, wall: Wall) -> dict[str, s
     if (kind in AREA_KINDS or kind in (GapKind.OPEN_AREA, GapKind.BACK_TO_BACK)) and area is not None \
             and area > wall.area_m2:
         errors["area_m2"] = "is larger than the wall"
-    if kind == GapKind.BRIDGE and face != Face.THROUGH:
-        errors["face"] = "a bridge joins both leaves; it must be recorded as through the wall"
     return errors
 
 

