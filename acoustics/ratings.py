@@ -42,21 +42,25 @@ from typing import Any, NamedTuple
 
 import numpy as np
 
-from .bands import BANDS, N_BANDS
-from .errors import RatingError
+from ._kernels import (
+    _HALF,
+    CHUNK,
+    ERR_ROWS,
+    SMALL_RATERS,
+    Work,
+    check_finite,
+    oitc_value,
+    rw_block,
+    rw_block_fast,
+    stc_block,
+)
+from .bands import N_BANDS
 from .spectra import (
-    _K16,
-    _NEG_LN10_100,
     _OITC,
-    _OITC_TOTAL,
     _OITC_W,
     _RW,
     _RW_SHAPE,
-    _RW_TENTHS,
     _SPEC1_100_3150,
-    _SPEC_USED,
-    _SPEC_W,
-    _SPEC_W_RW,
     _STC,
     _STC_SHAPE,
     _TERMS,
@@ -77,24 +81,10 @@ __all__ = [
 #: Names accepted by :func:`rate` and :func:`acoustics.audit`.
 RATINGS = ("stc", "rw", "oitc")
 
-# Rows per internal chunk: keeps temporaries inside the CPU cache and bounds
-# the memory of rating millions of curves.
-_CHUNK = 16384
-
-
-_E413 = "ASTM E413 range 125-4000 Hz"
-_ISO717 = "ISO 717-1 range 100-3150 Hz"
-_RANGE_TEXT = {
-    "STC": _E413,
-    "NIC": _E413,
-    "NNIC": _E413,
-    "ASTC": _E413,
-    "Rw": _ISO717,
-    "R'w": _ISO717,
-    "DnT,w": _ISO717,
-    "Dn,w": _ISO717,
-    "OITC": "ASTM E1332 range 80-4000 Hz",
-}
+# Re-exported for callers that rate blocks or check bands themselves.
+_check_finite = check_finite
+_rw_block = rw_block
+_oitc_value = oitc_value
 
 
 class RwResult(NamedTuple):
@@ -141,186 +131,12 @@ def _as_bands(tl: Any, name: str = "tl") -> np.ndarray:
     return arr
 
 
-def _check_finite(block: np.ndarray, sl: slice, rating: str) -> None:
-    sub = block[:, sl]
-    # One pass: NaN and +-inf fail the comparison; 1e6 dB keeps the integer tenths in range.
-    ok = np.abs(sub) < 1e6
-    if ok.all():
-        return
-    bad_rows, bad_cols = np.nonzero(~ok)
-    col = bad_cols.min()
-    band = float(BANDS[sl][col])
-    value = sub[bad_rows[bad_cols == col][0], col]
-    if np.isnan(value):
-        what = "missing (NaN)"
-    elif np.isinf(value):
-        what = f"not finite ({value})"
-    else:
-        what = f"out of range ({value} dB, limit +-1e6 dB)"
-    raise RatingError(
-        f"{rating} needs the {band:g} Hz band ({_RANGE_TEXT[rating]}), but it is {what}",
-        band=band,
-        rating=rating,
-    )
-
-
-def _lift(
-    v: np.ndarray, lo: np.ndarray, hi: np.ndarray, limit: int, unit: int, steps: tuple[int, ...]
-) -> np.ndarray:
-    """Largest s in [lo, hi] with sum_i max(0, unit*s - v_i) <= limit (``lo`` must satisfy it).
-
-    ``v`` (int16) has the bands on axis 0 and the curves on axis 1, so every
-    operation runs along long contiguous rows. The admissible s form a prefix of
-    [lo, hi] (the deficiency sum grows with s), so adding each power of two
-    whenever the result stays admissible finds the largest one.
-    """
-    res = lo
-    span = int(np.max(hi - lo)) if np.ndim(hi) else int(hi - np.min(lo))
-    # Powers of two up to the largest p <= span reach every offset up to 2p - 1 >= span.
-    steps = tuple(st for st in steps if st <= max(span, 1))
-    for step in steps:
-        cand = res + step
-        dev = (cand * unit).astype(np.int16) - v
-        np.maximum(dev, 0, out=dev)
-        ok = dev.sum(axis=0, dtype=np.int16) <= limit
-        ok &= cand <= hi
-        res = np.where(ok, cand, res)
-    return res
-
-
-def _rounded_rows(x: np.ndarray, sl: slice, scale: float) -> np.ndarray:
-    """round_half_up(x[:, sl] * scale) as float with bands on axis 0 (contiguous rows)."""
-    t = np.multiply(x[:, sl].T, scale, order="C")
-    t += 0.5 + 1e-7
-    return np.floor(t, out=t)
-
-
-def _relative(u: np.ndarray, cap: float) -> tuple[np.ndarray, np.ndarray]:
-    """Row minimum of u and min(u - umin, cap) as int16 (small non-negative integers)."""
-    umin = u.min(axis=0)
-    u -= umin
-    np.minimum(u, cap, out=u)
-    return umin, u.astype(np.int16)
-
-
-def _stc_block(x: np.ndarray, round_tl: bool) -> np.ndarray:
-    if round_tl:
-        u = _rounded_rows(x, _STC, 1.0)
-        u -= _STC_SHAPE[:, None]
-        umin, v = _relative(u, 9.0)
-        # Contour at umin + 2: every deficiency <= 2 dB, sum <= 32. umin + 8: the 8 dB single-band cap.
-        d = _lift(v, np.full(umin.shape, 2, np.int16), 8, 32, 1, (4, 2, 1))
-        return umin + d
-    u = np.subtract(x[:, _STC].T, _STC_SHAPE[:, None], order="C")
-    umin = u.min(axis=0)
-    lo, hi = np.floor(umin + 2 + 1e-9), np.floor(umin + 8 + 1e-9)
-    res = lo
-    for step in (4, 2, 1):
-        cand = res + step
-        ok = np.maximum(cand - u, 0).sum(axis=0) <= 32 + 1e-6
-        ok &= cand <= hi
-        res = np.where(ok, cand, res)
-    return res
-
-
-def _rw_value(tenths: np.ndarray, decimal: bool) -> np.ndarray:
-    """Rw of one block from the 100-3150 Hz band values in integer tenths of a dB, shape (16, n)."""
-    u = tenths - _RW_TENTHS[:, None]
-    usum = u.sum(axis=0)
-    umin, v = _relative(u, 600.0)
-    if decimal:
-        # Contour in tenths above umin: 20 keeps every deviation <= 2.0 dB; 320 puts the lowest band at 32.0.
-        d = _lift(v, np.full(umin.shape, 20, np.int16), 320, 320, 1, (256, 128, 64, 32, 16, 8, 4, 2, 1))
-        return (umin + d) / 10.0
-    lo = np.floor((umin + 20) / 10)
-    # Work in whole dB above lo; v measured from umin, so offset by (10 lo - umin) tenths (10..20).
-    off = (10 * lo - umin).astype(np.int16)
-    v = v - off
-    # Upper end: the lowest band alone reaches 32.0, and 16 s - sum(u) <= 32 (all deficient).
-    hi = np.minimum(np.floor((umin + 320) / 10), np.floor((320 + usum) / 160))
-    d = _lift(v, np.zeros(umin.shape, np.int16), (hi - lo).astype(np.int16), 320, 10, (16, 8, 4, 2, 1))
-    return lo + d
-
-
-def _tenths(x: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
-    """Band values reduced to 0.1 dB (ISO 717-1 4.4 footnote 1, ties up), in tenths, bands on axis 0.
-
-    Returns the (21, n) tenths and a (21, n) mask of non-finite bands (None if all finite);
-    non-finite bands (allowed outside 100-3150 Hz) are set to 0 and must be masked by the caller.
-    """
-    t = _rounded_rows(x, slice(None), 10.0)
-    bad = ~np.isfinite(t)
-    if bad.any():
-        t[bad] = 0.0
-        return t, bad
-    return t, None
-
-
-def _rw_block(x: np.ndarray, decimal: bool, enlarged: bool = True) -> tuple[np.ndarray, np.ndarray]:
-    """Rw (integer-valued or 0.1 dB) and the X_A sums (unrounded, (n, 8) or (n, 2)) for one block."""
-    if not enlarged:
-        tenths = _rounded_rows(x, _RW, 10.0)  # finite: checked by the caller
-        value = _rw_value(tenths, decimal)
-        tenths *= _NEG_LN10_100
-        power = np.exp(tenths, out=tenths)
-        xa = np.log10(_SPEC_W_RW @ power)
-        xa *= -10.0
-        return value, xa.T
-    tenths, bad = _tenths(x)
-    value = _rw_value(tenths[_RW], decimal)
-    tenths *= _NEG_LN10_100
-    power = np.exp(tenths, out=tenths)  # 10^(-X/10) with X = tenths / 10
-    if bad is not None:
-        power[bad] = 0.0
-    with np.errstate(divide="ignore"):
-        xa = np.log10(_SPEC_W.T @ power)
-    xa *= -10.0
-    xa = xa.T
-    if bad is not None:
-        xa[(_SPEC_USED.T.astype(float) @ bad.astype(float)).T > 0] = np.nan
-    return value, xa
-
-
-def _oitc_value(x: np.ndarray) -> np.ndarray:
-    """Unrounded OITC of one block."""
-    return _OITC_TOTAL - 10.0 * np.log10(np.exp(x[:, _OITC] * (-np.log(10.0) / 10.0)) @ _OITC_W)
-
-
-def _closed_form(u: np.ndarray, limit: float) -> np.ndarray:
-    """Largest s with sum_i max(0, s - u_i) <= limit per row of u (rows = curves), in closed form.
-
-    With u sorted and P_k the sum of its k smallest values, the deficiency sum
-    is max_k (k s - P_k), so s* = floor(min_k (limit + P_k) / k). Few numpy
-    calls, which suits the small batches of the audit (its cost there is
-    call overhead, not arithmetic).
-    """
-    u = np.sort(u, axis=1)
-    p = np.cumsum(u, axis=1)
-    p += limit
-    p /= _K16
-    return np.floor(p.min(axis=1) + 1e-9)
-
-
-def _small_stc(x: np.ndarray) -> np.ndarray:
-    t = np.floor(x[:, _STC] + (0.5 + 1e-7)) - _STC_SHAPE
-    return np.minimum(_closed_form(t, 32.0), t.min(axis=1) + 8.0)
-
-
-def _small_rw(x: np.ndarray) -> np.ndarray:
-    # Tenths, so an unfavourable sum of exactly 32.0 dB is compared exactly; s in tenths, then whole dB.
-    t = np.floor(x[:, _RW] * 10.0 + (0.5 + 1e-7)) - _RW_TENTHS
-    return np.floor(_closed_form(t / 10.0, 32.0 + 1e-9))
-
-
 def _block_rater(rating: str):
     """Integer rater of small 2-D blocks (curves on axis 0) without validation (callers validated once)."""
-    if rating == "stc":
-        return _small_stc
-    if rating == "rw":
-        return _small_rw
-    if rating == "oitc":
-        return lambda x: round_half_up(_oitc_value(x))
-    raise ValueError(f"rating must be one of {RATINGS}, got {rating!r}")
+    try:
+        return SMALL_RATERS[rating]
+    except KeyError:
+        raise ValueError(f"rating must be one of {RATINGS}, got {rating!r}") from None
 
 
 def rating_weights(rating: str) -> np.ndarray:
@@ -344,9 +160,11 @@ def rating_weights(rating: str) -> np.ndarray:
 
 
 def _blocks(arr: np.ndarray):
+    """Yield (start, block, span): blocks of CHUNK curves and the ERR_ROWS span an error is reported for."""
     flat = arr.reshape(-1, N_BANDS)
-    for start in range(0, flat.shape[0], _CHUNK):
-        yield start, flat[start : start + _CHUNK]
+    for start in range(0, flat.shape[0], CHUNK):
+        first = start - start % ERR_ROWS
+        yield start, flat[start : start + CHUNK], flat[first : first + ERR_ROWS]
 
 
 def _finish(values: np.ndarray, shape: tuple[int, ...], as_int: bool) -> Any:
@@ -397,9 +215,9 @@ def stc(tl: Any, *, round_tl: bool = True, _label: str = "STC") -> Any:
     arr = _as_bands(tl)
     out = np.empty(arr.shape[:-1], dtype=float)
     flat_out = out.reshape(-1)
-    for start, block in _blocks(arr):
-        _check_finite(block, _STC, _label)
-        flat_out[start : start + block.shape[0]] = _stc_block(block, round_tl)
+    ws = Work(min(flat_out.size, CHUNK), 16)
+    for start, block, span in _blocks(arr):
+        flat_out[start : start + block.shape[0]] = stc_block(block, round_tl, ws, _label, span)
     return _finish(out, arr.shape[:-1], True)
 
 
@@ -448,27 +266,37 @@ def rw(tl: Any, *, decimal: bool = False, enlarged: bool = True, _label: str = "
     arr = _as_bands(tl)
     lead = arr.shape[:-1]
     n = int(np.prod(lead)) if lead else 1
-    rw_out = np.empty(n)
-    xa_out = np.full((n, len(_TERMS)), np.nan)
     cols = len(_TERMS) if enlarged else 2
-    for start, block in _blocks(arr):
-        _check_finite(block, _RW, _label)
-        value, xa = _rw_block(block, decimal, enlarged)
+    rw_out = np.empty(n)
+    xa_out = np.empty((n, cols))
+    ws = Work(min(n, CHUNK), N_BANDS if enlarged else 16, power=True)
+    for start, block, span in _blocks(arr):
+        value, xa = rw_block_fast(block, decimal, enlarged, ws, _label, span)
         stop = start + block.shape[0]
         rw_out[start:stop] = value
-        xa_out[start:stop, :cols] = xa
+        xa_out[start:stop] = xa.T
+    # Terms: X_A rounded half up (to 1 or 0.1 dB) minus Rw, as round_half_up does it.
     with np.errstate(invalid="ignore"):
         if decimal:
-            terms = np.round(round_half_up(xa_out, 1) - rw_out[:, None], 1)
+            xa_out *= 10.0
+            xa_out += _HALF
+            np.floor(xa_out, out=xa_out)
+            xa_out /= 10.0
+            xa_out -= rw_out[:, None]
+            terms = np.round(xa_out, 1, out=xa_out)
         else:
-            terms = round_half_up(xa_out) - rw_out[:, None]
+            xa_out += _HALF
+            np.floor(xa_out, out=xa_out)
+            xa_out -= rw_out[:, None]
+            terms = xa_out
     if not lead:
         num = (lambda v: int(v)) if not decimal else (lambda v: float(v))
         vals = [num(rw_out[0])] + [None if np.isnan(v) else num(v) for v in terms[0]]
+        vals += [None] * (len(_TERMS) - cols)
         return RwResult(*vals)
     fields = [rw_out.reshape(lead)]
     for j in range(len(_TERMS)):
-        fields.append(terms[:, j].reshape(lead))
+        fields.append(terms[:, j].reshape(lead) if j < cols else np.full(lead, np.nan))
     if not decimal:
         for j in (0, 1, 2):
             fields[j] = fields[j].astype(np.int64)
@@ -502,9 +330,11 @@ def oitc(tl: Any, *, decimal: bool = False, _label: str = "OITC") -> Any:
     arr = _as_bands(tl)
     out = np.empty(arr.shape[:-1], dtype=float)
     flat_out = out.reshape(-1)
-    for start, block in _blocks(arr):
-        _check_finite(block, _OITC, _label)
-        flat_out[start : start + block.shape[0]] = _oitc_value(block)
+    for start, block, span in _blocks(arr):
+        sub = block[:, _OITC]
+        if not (sub.min() > -1e6 and sub.max() < 1e6):  # NaN fails too
+            check_finite(span, _OITC, _label)
+        flat_out[start : start + block.shape[0]] = oitc_value(block)
     out = round_half_up(out, 1 if decimal else 0)
     return _finish(out, arr.shape[:-1], not decimal)
 

@@ -14,8 +14,29 @@ from html import escape
 
 from django.utils.safestring import SafeString, mark_safe
 
-BANDS = (50, 63, 80, 100, 125, 160, 200, 250, 315, 400, 500, 630, 800, 1000, 1250, 1600, 2000, 2500,
-         3150, 4000, 5000)
+BANDS = (
+    50,
+    63,
+    80,
+    100,
+    125,
+    160,
+    200,
+    250,
+    315,
+    400,
+    500,
+    630,
+    800,
+    1000,
+    1250,
+    1600,
+    2000,
+    2500,
+    3150,
+    4000,
+    5000,
+)
 TICKS = {63: "63", 125: "125", 250: "250", 500: "500", 1000: "1k", 2000: "2k", 4000: "4k"}
 
 # Chart box in its own units (the SVG viewBox; the PDF scales it to millimetres).
@@ -88,12 +109,17 @@ def tl_chart(summary: dict, view: str = "verified") -> Chart | None:
         return TOP + (H - TOP - BOTTOM) * (y_max - val) / (y_max - y_min)
 
     step = 10 if y_max - y_min <= 80 else 20
-    chart = Chart(y_min, y_max, [(round(y_of(t), 1), f"{t}") for t in range(int(y_min), int(y_max) + 1, step)],
-                  [(round(_x(BANDS.index(f)), 1), t) for f, t in TICKS.items()])
+    chart = Chart(
+        y_min,
+        y_max,
+        [(round(y_of(t), 1), f"{t}") for t in range(int(y_min), int(y_max) + 1, step)],
+        [(round(_x(BANDS.index(f)), 1), t) for f, t in TICKS.items()],
+    )
     for k, (tl, rating) in enumerate(zip(v["after_tl"][:-1], v["after"][:-1], strict=True), start=1):
         stroke, width, dash = STYLES["after"]
-        chart.series.append(Series(f"after-{k}", f"after fix {k}: {name} {rating}", _segments(tl, y_of),
-                                   stroke, width, dash))
+        chart.series.append(
+            Series(f"after-{k}", f"after fix {k}: {name} {rating}", _segments(tl, y_of), stroke, width, dash)
+        )
     # The last step of the order is the designed wall itself, drawn below.
     for key, label, values in (
         ("contour", f"{name} reference contour at {v['as_found']}", contour),
@@ -114,28 +140,41 @@ def svg(chart: Chart | None, *, title: str = "Transmission loss by frequency") -
     if chart is None:
         return mark_safe("")
     t = escape(title)
-    out = [f'<svg class="tl-chart" viewBox="0 0 {W:g} {H:g}" role="img" aria-labelledby="tl-title" '
-           f'xmlns="http://www.w3.org/2000/svg" font-family="system-ui, sans-serif" font-size="12">',
-           f'<title id="tl-title">{t}</title>',
-           f'<rect x="{LEFT}" y="{TOP}" width="{W - LEFT - RIGHT}" height="{H - TOP - BOTTOM}" '
-           f'fill="#ffffff" stroke="#8a948f" stroke-width="1"/>']
+    out = [
+        f'<svg class="tl-chart" viewBox="0 0 {W:g} {H:g}" role="img" aria-labelledby="tl-title" '
+        f'xmlns="http://www.w3.org/2000/svg" font-family="system-ui, sans-serif" font-size="12">',
+        f'<title id="tl-title">{t}</title>',
+        f'<rect x="{LEFT}" y="{TOP}" width="{W - LEFT - RIGHT}" height="{H - TOP - BOTTOM}" '
+        f'fill="#ffffff" stroke="#8a948f" stroke-width="1"/>',
+    ]
     for y, label in chart.y_ticks:
-        out.append(f'<line x1="{LEFT}" x2="{W - RIGHT}" y1="{y}" y2="{y}" stroke="#d5dad7" stroke-width="1"/>')
+        out.append(
+            f'<line x1="{LEFT}" x2="{W - RIGHT}" y1="{y}" y2="{y}" stroke="#d5dad7" stroke-width="1"/>'
+        )
         out.append(f'<text x="{LEFT - 5}" y="{y + 4}" text-anchor="end" fill="#14211f">{label}</text>')
     for x, label in chart.x_ticks:
-        out.append(f'<line x1="{x}" x2="{x}" y1="{TOP}" y2="{H - BOTTOM}" stroke="#e3e7e4" stroke-width="1"/>')
+        out.append(
+            f'<line x1="{x}" x2="{x}" y1="{TOP}" y2="{H - BOTTOM}" stroke="#e3e7e4" stroke-width="1"/>'
+        )
         out.append(f'<text x="{x}" y="{H - BOTTOM + 15}" text-anchor="middle" fill="#14211f">{label}</text>')
-    out.append(f'<text x="{(LEFT + W - RIGHT) / 2}" y="{H - 8}" text-anchor="middle" fill="#14211f" '
-               f'font-weight="600">Frequency (Hz)</text>')
+    out.append(
+        f'<text x="{(LEFT + W - RIGHT) / 2}" y="{H - 8}" text-anchor="middle" fill="#14211f" '
+        f'font-weight="600">Frequency (Hz)</text>'
+    )
     cy = (TOP + H - BOTTOM) / 2
-    out.append(f'<text x="13" y="{cy}" text-anchor="middle" fill="#14211f" font-weight="600" '
-               f'transform="rotate(-90 13 {cy})">Transmission loss (dB)</text>')
+    out.append(
+        f'<text x="13" y="{cy}" text-anchor="middle" fill="#14211f" font-weight="600" '
+        f'transform="rotate(-90 13 {cy})">Transmission loss (dB)</text>'
+    )
     for s in chart.series:
         dash = f' stroke-dasharray="{s.dash}"' if s.dash else ""
         d = " ".join(_path(seg) for seg in s.segments)
         if d:
-            out.append(f'<path d="{d}" fill="none" stroke="{s.stroke}" stroke-width="{s.width}"{dash} '
-                       f'stroke-linejoin="round" data-series="{escape(s.key)}"><title>{escape(s.label)}</title></path>')
+            out.append(
+                f'<path d="{d}" fill="none" stroke="{s.stroke}" stroke-width="{s.width}"{dash} '
+                f'stroke-linejoin="round" data-series="{escape(s.key)}">'
+                f"<title>{escape(s.label)}</title></path>"
+            )
     out.append("</svg>")
     return mark_safe("".join(out))
 

@@ -50,18 +50,18 @@ SKIN_SURFACE_DENSITY = 1.5
 EXTRA_FLAG_TEXT = {
     "one_face_heuristic": "one-face gap degrades that face inside the double-leaf model (not a through-path)",
     "one_face_lab_fallback": "one-face gap on a wall type known only by its lab curve: estimated as the gap "
-                             "times the square root of the wall's transmission (derived, no published "
-                             "validation)",
+    "times the square root of the wall's transmission (derived, no published "
+    "validation)",
     "single_leaf_through": "single-leaf wall: a gap in one face goes through",
     "through_path": "back-to-back boxes: the lost cavity over the box footprint plus the box leak as a "
-                    "through-path",
+    "through-path",
     "opening_rating_contour": "an opening known only by its rating is drawn as the rating's reference "
-                              "contour placed at that rating (an approximation of its curve)",
+    "contour placed at that rating (an approximation of its curve)",
     "opening_unknown": "an opening with no TL curve and no rating is counted as wall",
     "equivalent_hole": "open area taken as a round hole of the same area",
     "not_modelled": "some findings cannot be modelled on this wall type; their cost is not included",
     "tl_gaps_filled": "bands missing from the lab curve were filled from the nearest measured band for "
-                      "the one-face estimate",
+    "the one-face estimate",
 }
 
 RATING_NAMES = {"stc": "STC", "rw": "Rw"}
@@ -219,8 +219,9 @@ def _gap_leak(f, depth: float, memo: dict):
             return key, memo[key]
         shape, width, length, extra = "hole", math.sqrt(4 * area / math.pi), 1.0, ("equivalent_hole",)
     if fill == "fibre":
-        leak = acoustics.filled_gap(width, length, depth, flow_resistivity=FIBRE_FLOW_RESISTIVITY,
-                                    shape=shape)
+        leak = acoustics.filled_gap(
+            width, length, depth, flow_resistivity=FIBRE_FLOW_RESISTIVITY, shape=shape
+        )
     elif fill == "skin":
         leak = acoustics.skin_gap(width, length, depth, surface_density=SKIN_SURFACE_DENSITY, shape=shape)
     elif kind == "slit":
@@ -276,8 +277,13 @@ def finding_leak(f, ctx: _Context):
                         lk = acoustics.Leak(lk.area, lk.kind, "", (*lk.flags, "tl_gaps_filled"))
                     memo[mkey] = lk
             leak = memo[mkey]
-            return acoustics.Leak(leak.area * count, f.kind, label, leak.flags,
-                                  gap.open_area * count if math.isfinite(gap.open_area) else float("nan"))
+            return acoustics.Leak(
+                leak.area * count,
+                f.kind,
+                label,
+                leak.flags,
+                gap.open_area * count if math.isfinite(gap.open_area) else float("nan"),
+            )
         if ctx.asm is None:
             raise Unmodelled("needs the wall type's layers; it is known only by its lab curve")
         if f.kind == "bridge":
@@ -289,12 +295,17 @@ def finding_leak(f, ctx: _Context):
         asm = ctx.asm
         if f.kind in ("missing_insulation", "channel_short", "missing_layer"):
             side = 1 if f.face == "b" else 0
-            unit = ctx.per_m2(f"{f.kind}:{side}", {
-                "missing_insulation": lambda: acoustics.insulation_defect(asm, 1.0),
-                "channel_short": lambda: acoustics.Leak.added(
-                    acoustics.channel_short_circuit(asm, 1.0).area / asm.area, kind="channel_short_circuit"),
-                "missing_layer": lambda: acoustics.missing_layer(asm, side, 1.0),
-            }[f.kind])
+            unit = ctx.per_m2(
+                f"{f.kind}:{side}",
+                {
+                    "missing_insulation": lambda: acoustics.insulation_defect(asm, 1.0),
+                    "channel_short": lambda: acoustics.Leak.added(
+                        acoustics.channel_short_circuit(asm, 1.0).area / asm.area,
+                        kind="channel_short_circuit",
+                    ),
+                    "missing_layer": lambda: acoustics.missing_layer(asm, side, 1.0),
+                }[f.kind],
+            )
             area = min(float(f.area_m2), ctx.area)
             return acoustics.Leak(unit.area * area, f.kind, label, unit.flags)
         if f.kind == "back_to_back":
@@ -311,8 +322,9 @@ def finding_leak(f, ctx: _Context):
                 hole = memo[hkey].times(count)
                 parts.append(hole.area)
                 flags += [*hole.flags, "equivalent_hole"]
-            return acoustics.Leak.added(np.sum(parts, axis=0), kind=f.kind, label=label,
-                                        flags=tuple(dict.fromkeys(flags)))
+            return acoustics.Leak.added(
+                np.sum(parts, axis=0), kind=f.kind, label=label, flags=tuple(dict.fromkeys(flags))
+            )
     except acoustics.AcousticsError as exc:  # GeometryError and friends are ValueErrors with a reason
         raise Unmodelled(str(exc)) from None
     raise Unmodelled(f"kind {f.kind!r} has no model")
@@ -418,8 +430,14 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None):
             unmodelled.append({"finding": f.pk, "reason": str(exc)})
     if unmodelled:
         flags.append("not_modelled")
-    meta = {"finding_ids": ids, "unmodelled": unmodelled, "openings": o_rows, "flags": flags,
-            "net_area": net, "wall_type_tl": [None if not math.isfinite(v) else float(v) for v in wall_tl]}
+    meta = {
+        "finding_ids": ids,
+        "unmodelled": unmodelled,
+        "openings": o_rows,
+        "flags": flags,
+        "net_area": net,
+        "wall_type_tl": [None if not math.isfinite(v) else float(v) for v in wall_tl],
+    }
     return tl, area, leaks, meta
 
 
@@ -441,9 +459,19 @@ def _view(tl, area, leaks, ids, statuses, scheme, target) -> dict:
     import acoustics
 
     a = acoustics.audit(tl, area, leaks, rating=scheme, target=target).to_dict()
-    rows = [{"finding": ids[i], "gain": a["gain"][i], "open_area_500": a["open_area_500"][i],
-             "power_share": a["power_share"][i], "kind": a["kinds"][i], "label": a["labels"][i],
-             "status": statuses[ids[i]], "flags": list(leaks[i].flags)} for i in range(len(leaks))]
+    rows = [
+        {
+            "finding": ids[i],
+            "gain": a["gain"][i],
+            "open_area_500": a["open_area_500"][i],
+            "power_share": a["power_share"][i],
+            "kind": a["kinds"][i],
+            "label": a["labels"][i],
+            "status": statuses[ids[i]],
+            "flags": list(leaks[i].flags),
+        }
+        for i in range(len(leaks))
+    ]
     return {
         "as_found": a["as_found"],
         "terms": _terms(np.array([np.nan if v is None else v for v in a["as_found_tl"]]), scheme),
@@ -451,8 +479,9 @@ def _view(tl, area, leaks, ids, statuses, scheme, target) -> dict:
         "order": [ids[i] for i in a["order"]],
         "after": a["after"],
         "needed": None if a["needed"] is None else [ids[i] for i in a["needed"]],
-        "reaches_target": None if target is None else bool(a["after"][-1] >= target if a["after"]
-                                                             else a["as_found"] >= target),
+        "reaches_target": None
+        if target is None
+        else bool(a["after"][-1] >= target if a["after"] else a["as_found"] >= target),
         "shortfall": None if target is None else max(0, target - a["as_found"]),
         "as_found_tl": a["as_found_tl"],
         "after_tl": a["after_tl"],
@@ -470,9 +499,15 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     scheme = wall.rating_scheme or "stc"
     target = wall.target_rating
     out: dict[str, Any] = {
-        "v": ENGINE_VERSION, "wall": wall.pk, "scheme": scheme,
+        "v": ENGINE_VERSION,
+        "wall": wall.pk,
+        "scheme": scheme,
         "rating_name": RATING_NAMES.get(scheme, scheme),
-        "target": target, "designed": None, "as_found": None, "shortfall": None, "error": None,
+        "target": target,
+        "designed": None,
+        "as_found": None,
+        "shortfall": None,
+        "error": None,
     }
     live = _live_findings(wall)
     statuses = {f.pk: f.status for f in live}
@@ -492,8 +527,10 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
         "verified": [i for i in ids if statuses[i] != FindingStatus.VERIFIED],
     }
     try:
-        views = {name: _view(tl, area, [by_id[i] for i in sel], sel, statuses, scheme, target)
-                 for name, sel in pick.items()}
+        views = {
+            name: _view(tl, area, [by_id[i] for i in sel], sel, statuses, scheme, target)
+            for name, sel in pick.items()
+        }
         designed = int(acoustics.rate(tl, scheme))
     except acoustics.RatingError as exc:
         out["error"] = f"No rating: {exc}"
@@ -501,24 +538,29 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     v = views["verified"]
     flags = list(dict.fromkeys([*meta["flags"], *views["walked"]["flags"]]))
     text = {**acoustics.FLAG_TEXT, **EXTRA_FLAG_TEXT}
-    out.update({
-        "designed": designed,
-        "designed_terms": _terms(tl, scheme),
-        "designed_tl": [None if not math.isfinite(x) else float(x) for x in tl],
-        "area": area,
-        "net_area": meta["net_area"],
-        "as_found": v["as_found"],
-        "shortfall": v["shortfall"],
-        "walked": views["walked"]["as_found"],
-        "rows": v["rows"], "order": v["order"], "after": v["after"], "needed": v["needed"],
-        "flags": flags,
-        "flag_text": {f: text.get(f, f.replace("_", " ")) for f in flags},
-        "unmodelled": meta["unmodelled"],
-        "openings": meta["openings"],
-        "views": views,
-        "reported": views["reported"],
-        "verified": v,
-    })
+    out.update(
+        {
+            "designed": designed,
+            "designed_terms": _terms(tl, scheme),
+            "designed_tl": [None if not math.isfinite(x) else float(x) for x in tl],
+            "area": area,
+            "net_area": meta["net_area"],
+            "as_found": v["as_found"],
+            "shortfall": v["shortfall"],
+            "walked": views["walked"]["as_found"],
+            "rows": v["rows"],
+            "order": v["order"],
+            "after": v["after"],
+            "needed": v["needed"],
+            "flags": flags,
+            "flag_text": {f: text.get(f, f.replace("_", " ")) for f in flags},
+            "unmodelled": meta["unmodelled"],
+            "openings": meta["openings"],
+            "views": views,
+            "reported": views["reported"],
+            "verified": v,
+        }
+    )
     return out
 
 
@@ -532,9 +574,16 @@ def fix_steps(summary: dict, view: str = "verified") -> dict[int, dict]:
     out, before = {}, v["as_found"]
     for k, (fid, after) in enumerate(zip(v["order"], v["after"], strict=True), start=1):
         r = rows[fid]
-        out[fid] = {"step": k, "buys": after - before, "after": after, "alone": r["gain"],
-                    "share": r["power_share"], "open_area": r["open_area_500"], "needed": fid in needed,
-                    "flags": r["flags"]}
+        out[fid] = {
+            "step": k,
+            "buys": after - before,
+            "after": after,
+            "alone": r["gain"],
+            "share": r["power_share"],
+            "open_area": r["open_area_500"],
+            "needed": fid in needed,
+            "flags": r["flags"],
+        }
         before = after
     return out
 
@@ -569,8 +618,11 @@ def audit_keys(walls: list) -> dict[int, str]:
     wkeys = [_STAMP_W.format(w.pk) for w in walls]
     tkeys = list(dict.fromkeys(_STAMP_T.format(w.wall_type_id) for w in walls))
     stamps = _stamps(wkeys + tkeys)
-    return {w.pk: f"sealwalk:audit:{ENGINE_VERSION}:{w.pk}:{stamps.get(_STAMP_W.format(w.pk), '-')}:"
-                  f"{stamps.get(_STAMP_T.format(w.wall_type_id), '-')}" for w in walls}
+    return {
+        w.pk: f"sealwalk:audit:{ENGINE_VERSION}:{w.pk}:{stamps.get(_STAMP_W.format(w.pk), '-')}:"
+        f"{stamps.get(_STAMP_T.format(w.wall_type_id), '-')}"
+        for w in walls
+    }
 
 
 def audits_for_walls(walls: Iterable) -> dict[int, dict]:
@@ -592,6 +644,9 @@ def audits_for_walls(walls: Iterable) -> dict[int, dict]:
     if cold:
         from django.db.models import prefetch_related_objects
 
+        for w in cold:  # a wall object reused after a change must not keep its old findings
+            for name in ("openings", "findings"):
+                getattr(w, "_prefetched_objects_cache", {}).pop(name, None)
         prefetch_related_objects(
             cold,
             Prefetch("openings", queryset=Opening.objects.filter(removed=False).order_by("id")),

@@ -48,56 +48,97 @@ def report_content(job) -> dict:
     """Everything the report states, as JSON-ready data (3 queries when the audits are cached)."""
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
     audits = audits_for_walls(walls)
-    findings = list(Finding.objects.live().filter(job=job)
-                    .select_related("wall", "seal_point", "created_by", "fixed_by", "verified_by")
-                    .order_by("wall__level", "wall__tag", "id"))
+    findings = list(
+        Finding.objects.live()
+        .filter(job=job)
+        .select_related("wall", "seal_point", "created_by", "fixed_by", "verified_by")
+        .order_by("wall__level", "wall__tag", "id")
+    )
     photos: dict[int, list[str]] = {}
-    for fid, sha in Photo.objects.filter(job=job, removed=False, finding__isnull=False) \
-            .order_by("uploaded_at", "id").values_list("finding_id", "sha256"):
+    for fid, sha in (
+        Photo.objects.filter(job=job, removed=False, finding__isnull=False)
+        .order_by("uploaded_at", "id")
+        .values_list("finding_id", "sha256")
+    ):
         photos.setdefault(fid, []).append(sha)
     u = job.units
     steps = {w.pk: fix_steps(audits[w.pk]) for w in walls}
     wall_rows = []
     for w in walls:
         a = audits[w.pk]
-        wall_rows.append({
-            "id": w.pk, "tag": w.tag, "level": w.level, "location": w.location,
-            "wall_type": f"{w.wall_type.code} {w.wall_type.name}", "size": f"{units.fmt(w.length_m, 'size', u)} x "
-                                                                      f"{units.fmt(w.height_m, 'size', u)}",
-            "scheme": a["scheme"], "rating_name": a["rating_name"], "target": a["target"],
-            "designed": a["designed"], "walked": a.get("walked"), "current": a["as_found"],
-            "reported": a["reported"]["as_found"] if a.get("reported") else None,
-            "shortfall": a["shortfall"], "error": a["error"],
-            "terms": (a.get("verified") or {}).get("terms"),
-            "flags": [a["flag_text"][f] for f in a.get("flags", [])],
-            "unmodelled": a.get("unmodelled", []),
-        })
+        wall_rows.append(
+            {
+                "id": w.pk,
+                "tag": w.tag,
+                "level": w.level,
+                "location": w.location,
+                "wall_type": f"{w.wall_type.code} {w.wall_type.name}",
+                "size": f"{units.fmt(w.length_m, 'size', u)} x {units.fmt(w.height_m, 'size', u)}",
+                "scheme": a["scheme"],
+                "rating_name": a["rating_name"],
+                "target": a["target"],
+                "designed": a["designed"],
+                "walked": a.get("walked"),
+                "current": a["as_found"],
+                "reported": a["reported"]["as_found"] if a.get("reported") else None,
+                "shortfall": a["shortfall"],
+                "error": a["error"],
+                "terms": (a.get("verified") or {}).get("terms"),
+                "flags": [a["flag_text"][f] for f in a.get("flags", [])],
+                "unmodelled": a.get("unmodelled", []),
+            }
+        )
     finding_rows = []
     for f in findings:
         st = steps.get(f.wall_id, {}).get(f.pk, {})
-        finding_rows.append({
-            "id": f.pk, "wall": f.wall.tag, "level": f.wall.level, "kind": f.get_kind_display(),
-            "face": f.get_face_display(), "size": size_text(f, u), "trade": f.get_trade_display(),
-            "status": f.status, "status_label": f.get_status_display(),
-            "seal_point": f.seal_point.label if f.seal_point else "", "note": f.note, "fix_note": f.fix_note,
-            "found_by": _who(f.created_by), "found_at": _when(f.device_time or f.created_at),
-            "fixed_by": _who(f.fixed_by), "fixed_at": _when(f.fixed_at),
-            "verified_by": _who(f.verified_by), "verified_at": _when(f.verified_at),
-            "buys": st.get("buys"), "step": st.get("step"), "share": st.get("share"),
-            "photos": photos.get(f.pk, []),
-        })
+        finding_rows.append(
+            {
+                "id": f.pk,
+                "wall": f.wall.tag,
+                "level": f.wall.level,
+                "kind": f.get_kind_display(),
+                "face": f.get_face_display(),
+                "size": size_text(f, u),
+                "trade": f.get_trade_display(),
+                "status": f.status,
+                "status_label": f.get_status_display(),
+                "seal_point": f.seal_point.label if f.seal_point else "",
+                "note": f.note,
+                "fix_note": f.fix_note,
+                "found_by": _who(f.created_by),
+                "found_at": _when(f.device_time or f.created_at),
+                "fixed_by": _who(f.fixed_by),
+                "fixed_at": _when(f.fixed_at),
+                "verified_by": _who(f.verified_by),
+                "verified_at": _when(f.verified_at),
+                "buys": st.get("buys"),
+                "step": st.get("step"),
+                "share": st.get("share"),
+                "photos": photos.get(f.pk, []),
+            }
+        )
     status = [f["status"] for f in finding_rows]
     totals = {
-        "walls": len(wall_rows), "below_target": sum(1 for w in wall_rows if w["shortfall"]),
+        "walls": len(wall_rows),
+        "below_target": sum(1 for w in wall_rows if w["shortfall"]),
         "findings": len(finding_rows),
         "open": sum(s in (FindingStatus.OPEN, FindingStatus.REOPENED) for s in status),
-        "fixed": status.count(FindingStatus.FIXED), "verified": status.count(FindingStatus.VERIFIED),
+        "fixed": status.count(FindingStatus.FIXED),
+        "verified": status.count(FindingStatus.VERIFIED),
     }
     return {
-        "job": {"id": job.pk, "name": job.name, "address": job.address, "units": job.get_units_display(),
-                "rating_scheme": job.get_rating_scheme_display(), "rule_set": job.rule_set},
+        "job": {
+            "id": job.pk,
+            "name": job.name,
+            "address": job.address,
+            "units": job.get_units_display(),
+            "rating_scheme": job.get_rating_scheme_display(),
+            "rule_set": job.rule_set,
+        },
         "targets": sorted({(w["rating_name"], w["target"]) for w in wall_rows if w["target"]}),
-        "walls": wall_rows, "findings": finding_rows, "totals": totals,
+        "walls": wall_rows,
+        "findings": finding_rows,
+        "totals": totals,
         "cautions": [[c.title, c.text, c.basis] for c in (CAUTIONS[k] for k in GENERAL_CAUTIONS)],
     }
 
@@ -109,8 +150,12 @@ def content_sha256(content: dict) -> str:
 
 
 def last_sign_off(job) -> Event | None:
-    return (Event.objects.filter(job=job, verb="report.signed").select_related("actor")
-            .order_by("-at", "-id").first())
+    return (
+        Event.objects.filter(job=job, verb="report.signed")
+        .select_related("actor")
+        .order_by("-at", "-id")
+        .first()
+    )
 
 
 def file_stem(job) -> str:
@@ -129,26 +174,92 @@ def punch_list_csv(job, content: dict | None = None) -> str:
     content = content or report_content(job)
     out = io.StringIO()
     writer = csv.writer(out)
-    writer.writerow(["finding", "wall", "level", "kind", "face", "size", "trade", "seal point", "status",
-                     "fix-first step", "rating bought back", "note", "found by", "found at", "fix note",
-                     "fixed by", "fixed at", "verified by", "verified at", "photos"])
+    writer.writerow(
+        [
+            "finding",
+            "wall",
+            "level",
+            "kind",
+            "face",
+            "size",
+            "trade",
+            "seal point",
+            "status",
+            "fix-first step",
+            "rating bought back",
+            "note",
+            "found by",
+            "found at",
+            "fix note",
+            "fixed by",
+            "fixed at",
+            "verified by",
+            "verified at",
+            "photos",
+        ]
+    )
     for f in content["findings"]:
-        writer.writerow([neutralise(v) for v in (
-            f["id"], f["wall"], f["level"], f["kind"], f["face"], f["size"], f["trade"], f["seal_point"],
-            f["status_label"], f["step"] or "", f["buys"] if f["buys"] is not None else "", f["note"],
-            f["found_by"], f["found_at"], f["fix_note"], f["fixed_by"], f["fixed_at"], f["verified_by"],
-            f["verified_at"], len(f["photos"]))])
+        writer.writerow(
+            [
+                neutralise(v)
+                for v in (
+                    f["id"],
+                    f["wall"],
+                    f["level"],
+                    f["kind"],
+                    f["face"],
+                    f["size"],
+                    f["trade"],
+                    f["seal_point"],
+                    f["status_label"],
+                    f["step"] or "",
+                    f["buys"] if f["buys"] is not None else "",
+                    f["note"],
+                    f["found_by"],
+                    f["found_at"],
+                    f["fix_note"],
+                    f["fixed_by"],
+                    f["fixed_at"],
+                    f["verified_by"],
+                    f["verified_at"],
+                    len(f["photos"]),
+                )
+            ]
+        )
     return out.getvalue()
 
 
 # --------------------------------------------------------------------------- PDF
-_LATIN = str.maketrans({"—": "-", "–": "-", "−": "-", "’": "'", "‘": "'", "“": '"', "”": '"', "…": "...",
-                        "≥": ">=", "≤": "<=", "⌀": "dia. ", "→": "->", "›": ">", "•": "-", "\u00a0": " "})
+_LATIN = str.maketrans(
+    {
+        "—": "-",
+        "–": "-",
+        "−": "-",
+        "’": "'",
+        "‘": "'",
+        "“": '"',
+        "”": '"',
+        "…": "...",
+        "≥": ">=",
+        "≤": "<=",
+        "⌀": "dia. ",
+        "→": "->",
+        "›": ">",
+        "•": "-",
+        "\u00a0": " ",
+    }
+)
 
 
 def pdf_text(value) -> str:
     """Text for the PDF's core fonts (Latin-1): common typography mapped, anything else '?'."""
-    return str(value if value is not None else "").translate(_LATIN).encode("latin-1", "replace").decode("latin-1")
+    return (
+        str(value if value is not None else "")
+        .replace("⌀ ", "⌀")
+        .translate(_LATIN)
+        .encode("latin-1", "replace")
+        .decode("latin-1")
+    )
 
 
 def _rating(w: dict, value) -> str:
@@ -176,8 +287,10 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     W = pdf.epw
 
     def para(text, size=10, style="", h=5):
+        # Own word wrap: fpdf2's multi_cell costs about 4 ms a paragraph, too slow for 1000 findings.
         pdf.set_font("Helvetica", style, size)
-        pdf.multi_cell(W, h, pdf_text(text), new_x=XPos.LMARGIN, new_y=YPos.NEXT)
+        for line in _wrap(pdf, pdf_text(text), W):
+            pdf.cell(W, h, line, new_x=XPos.LMARGIN, new_y=YPos.NEXT)
 
     def heading(text, size=14):
         pdf.ln(2)
@@ -200,18 +313,33 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     if content["targets"]:
         para("Targets: " + "; ".join(f"{n} {t}" for n, t in content["targets"]))
     t = content["totals"]
-    para(f"{t['walls']} walls, {t['below_target']} below target now. {t['findings']} findings: {t['open']} open, "
-         f"{t['fixed']} reported fixed awaiting check, {t['verified']} verified.", 11, "B")
+    para(
+        f"{t['walls']} walls, {t['below_target']} below target now. "
+        f"{t['findings']} findings: {t['open']} open, "
+        f"{t['fixed']} reported fixed awaiting check, {t['verified']} verified.",
+        11,
+        "B",
+    )
     para(f"Report content SHA-256: {digest}", 8)
     if signed is not None:
-        state = "matches this report" if signed.data.get("sha256") == digest else \
-            "DOES NOT match this report: the record changed after sign-off"
-        para(f"Signed off by {signed.data.get('who', _who(signed.actor))} on {_when(signed.at)}; "
-             f"signed content {signed.data.get('sha256', '')[:16]}... {state}.", 9, "B")
+        state = (
+            "matches this report"
+            if signed.data.get("sha256") == digest
+            else "DOES NOT match this report: the record changed after sign-off"
+        )
+        para(
+            f"Signed off by {signed.data.get('who', _who(signed.actor))} on {_when(signed.at)}; "
+            f"signed content {signed.data.get('sha256', '')[:16]}... {state}.",
+            9,
+            "B",
+        )
     else:
         para("Not signed off yet.", 9, "B")
-    para("Ratings are laboratory-type estimates from the recorded gaps (designed curve with the findings as "
-         "leaks). Current counts only fixes the inspector verified; As found has every recorded finding open.", 9)
+    para(
+        "Ratings are laboratory-type estimates from the recorded gaps (designed curve with the findings as "
+        "leaks). Current counts only fixes the inspector verified; As found has every recorded finding open.",
+        9,
+    )
 
     heading("Cautions")
     for title, text, basis in content["cautions"]:
@@ -220,16 +348,30 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
 
     heading("Walls")
     widths = [18, 10, 44, 18, 20, 20, 20, 14, 16]
-    row(["Wall", "Level", "Wall type", "Target", "Designed", "As found", "Current", "Short", "Open"], widths,
-        "B")
+    row(
+        ["Wall", "Level", "Wall type", "Target", "Designed", "As found", "Current", "Short", "Open"],
+        widths,
+        "B",
+    )
     open_by_wall: dict[str, int] = {}
     for f in content["findings"]:
         if f["status"] in (FindingStatus.OPEN, FindingStatus.REOPENED):
             open_by_wall[f["wall"]] = open_by_wall.get(f["wall"], 0) + 1
     for w in content["walls"]:
-        row([w["tag"], w["level"], w["wall_type"], _rating(w, w["target"]), _rating(w, w["designed"]),
-             _rating(w, w["walked"]), _rating(w, w["current"]), w["shortfall"] if w["shortfall"] else "",
-             open_by_wall.get(w["tag"], 0)], widths)
+        row(
+            [
+                w["tag"],
+                w["level"],
+                w["wall_type"],
+                _rating(w, w["target"]),
+                _rating(w, w["designed"]),
+                _rating(w, w["walked"]),
+                _rating(w, w["current"]),
+                w["shortfall"] if w["shortfall"] else "",
+                open_by_wall.get(w["tag"], 0),
+            ],
+            widths,
+        )
 
     by_wall: dict[str, list] = {}
     for f in content["findings"]:
@@ -241,9 +383,12 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         if pdf.will_page_break(95):
             pdf.add_page()
         heading(f"Wall {w['tag']} - level {w['level']}, {w['location']}", 12)
-        para(f"{w['wall_type']}; {w['size']}. Target {_rating(w, w['target'])}, designed "
-             f"{_rating(w, w['designed'])}, as found {_rating(w, w['walked'])}, current (verified fixes) "
-             f"{_rating(w, w['current'])}, if reported fixes hold {_rating(w, w['reported'])}.", 9)
+        para(
+            f"{w['wall_type']}; {w['size']}. Target {_rating(w, w['target'])}, designed "
+            f"{_rating(w, w['designed'])}, as found {_rating(w, w['walked'])}, current (verified fixes) "
+            f"{_rating(w, w['current'])}, if reported fixes hold {_rating(w, w['reported'])}.",
+            9,
+        )
         if w["terms"]:
             para(f"Current spectrum terms: C {w['terms']['c']}, Ctr {w['terms']['ctr']} dB (ISO 717-1).", 8)
         if w["error"]:
@@ -258,13 +403,27 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
             if pdf.will_page_break(12):
                 pdf.add_page()
             buys = f", fix-first step {f['step']} buys +{f['buys']} {w['rating_name']}" if f["step"] else ""
-            para(f"#{f['id']} {f['kind']}, {f['size']}, {f['face'].lower()}, {f['trade']}: "
-                 f"{f['status_label']}{buys}", 8.5, "B", 4.2)
+            para(
+                f"#{f['id']} {f['kind']}, {f['size']}, {f['face'].lower()}, {f['trade']}: "
+                f"{f['status_label']}{buys}",
+                8.5,
+                "B",
+                4.2,
+            )
             fixed = f"Fixed by {f['fixed_by']} {f['fixed_at']}" if f["fixed_at"] else ""
             checked = f"verified by {f['verified_by']} {f['verified_at']}" if f["verified_at"] else ""
-            detail = "; ".join(x for x in (f["seal_point"] and f"At {f['seal_point'].lower()}", f["note"],
-                                           f"Found by {f['found_by']} {f['found_at']}", fixed,
-                                           f["fix_note"] and f"fix note: {f['fix_note']}", checked) if x)
+            detail = "; ".join(
+                x
+                for x in (
+                    f["seal_point"] and f"At {f['seal_point'].lower()}",
+                    f["note"],
+                    f"Found by {f['found_by']} {f['found_at']}",
+                    fixed,
+                    f["fix_note"] and f"fix note: {f['fix_note']}",
+                    checked,
+                )
+                if x
+            )
             para(detail, 7.5, h=3.6)
             pics = thumbs.get(f["id"], [])[:3]
             if pics:
@@ -281,9 +440,40 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     open_items = [f for f in content["findings"] if f["status"] != FindingStatus.VERIFIED]
     open_items.sort(key=lambda f: (-(f["buys"] or 0), f["wall"], f["step"] or 0))
     for f in open_items:
-        row([f["wall"], f["id"], f["kind"], f["size"], f["trade"], f"+{f['buys']}" if f["buys"] else "",
-             f["seal_point"]], ow)
+        row(
+            [
+                f["wall"],
+                f["id"],
+                f["kind"],
+                f["size"],
+                f["trade"],
+                f"+{f['buys']}" if f["buys"] else "",
+                f["seal_point"],
+            ],
+            ow,
+        )
     return bytes(pdf.output())
+
+
+def _wrap(pdf, text: str, width: float) -> list[str]:
+    """Lines of ``text`` no wider than ``width`` mm in the current font (words kept whole when they fit)."""
+    space = pdf.get_string_width(" ")
+    lines: list[str] = []
+    for raw in text.split("\n"):
+        line, used = "", 0.0
+        for word in raw.split(" "):
+            w = pdf.get_string_width(word)
+            if line and used + space + w <= width:
+                line, used = f"{line} {word}", used + space + w
+                continue
+            if line:
+                lines.append(line)
+            if w > width:
+                word = _fit(pdf, word, width)
+                w = pdf.get_string_width(word)
+            line, used = word, w
+        lines.append(line)
+    return lines
 
 
 def _fit(pdf, text: str, width: float) -> str:
@@ -297,7 +487,9 @@ def _fit(pdf, text: str, width: float) -> str:
 
 def _thumbs(job) -> dict[int, list[bytes]]:
     out: dict[int, list[bytes]] = {}
-    for p in Photo.objects.filter(job=job, removed=False, finding__isnull=False).order_by("uploaded_at", "id"):
+    for p in Photo.objects.filter(job=job, removed=False, finding__isnull=False).order_by(
+        "uploaded_at", "id"
+    ):
         try:
             with p.thumbnail.open("rb") as fh:
                 out.setdefault(p.finding_id, []).append(fh.read())
@@ -335,7 +527,7 @@ def _draw_chart(pdf, chart) -> None:
     with pdf.rotation(90, *P(12, (T + B) / 2 + 70)):
         pdf.text(*P(12, (T + B) / 2 + 70), "Transmission loss (dB)")
     for s in chart.series:
-        r, g, b = (int(s.stroke[i:i + 2], 16) for i in (1, 3, 5))
+        r, g, b = (int(s.stroke[i : i + 2], 16) for i in (1, 3, 5))
         pdf.set_draw_color(r, g, b)
         pdf.set_line_width(s.width * scale * 0.9)
         if s.dash:
@@ -348,16 +540,17 @@ def _draw_chart(pdf, chart) -> None:
     lx, ly = x0 + chart_mod.W * scale + 4, y0 + 4
     pdf.set_font("Helvetica", "", 7)
     for item in chart_mod.legend(chart):
-        r, g, b = (int(item["stroke"][i:i + 2], 16) for i in (1, 3, 5))
+        r, g, b = (int(item["stroke"][i : i + 2], 16) for i in (1, 3, 5))
         pdf.set_draw_color(r, g, b)
         pdf.set_line_width(item["width"] * scale * 0.9)
         if item["dash"]:
             pdf.set_dash_pattern(*(float(v) * scale for v in item["dash"].split()))
         pdf.line(lx, ly, lx + 8, ly)
         pdf.set_dash_pattern()
-        pdf.set_xy(lx + 10, ly - 2.5)
-        pdf.multi_cell(pdf.w - pdf.r_margin - lx - 10, 3.5, pdf_text(item["label"]))
-        ly = pdf.get_y() + 2
+        for k, line in enumerate(_wrap(pdf, pdf_text(item["label"]), pdf.w - pdf.r_margin - lx - 10)):
+            pdf.set_xy(lx + 10, ly - 2.5 + 3.5 * k)
+            pdf.cell(pdf.w - pdf.r_margin - lx - 10, 3.5, line)
+        ly = pdf.get_y() + 5.5
     pdf.set_draw_color(0, 0, 0)
     pdf.set_line_width(0.2)
     pdf.set_xy(pdf.l_margin, y0 + chart_mod.H * scale + 2)

@@ -152,10 +152,19 @@ def finish_upload(member: Member, photo_id) -> tuple[Photo, bool]:
         if len(data) != upload.total_bytes:
             raise Reject({"offset": [f"the upload has {len(data)} of {upload.total_bytes} bytes"]})
         if hashlib.sha256(data).hexdigest() != upload.sha256:
-            # Start again: the bytes on the server are not what the device meant to send.
-            upload.received = b""
-            upload.save(update_fields=["received", "updated_at"])
-            raise Reject({"sha256": ["does not match the bytes received; the upload was reset"]})
+            # Start again (outside this transaction, which the error rolls back): the bytes on the
+            # server are not what the device meant to send.
+            PhotoUpload.objects.filter(pk=upload.pk).update(received=b"")
+            mismatch = True
+        else:
+            mismatch = False
+    if mismatch:
+        raise Reject({"sha256": ["does not match the bytes received; the upload was reset"]})
+    with transaction.atomic():
+        upload = _upload(member, photo_id, lock=True)
+        data = bytes(upload.received)
+        if len(data) != upload.total_bytes or hashlib.sha256(data).hexdigest() != upload.sha256:
+            raise Reject({"offset": ["the upload changed while finishing; ask for the offset and go on"]})
         clean = clean_photo(data)
         photo = Photo(
             id=upload.id, job=upload.job, wall=upload.wall, finding=upload.finding, purpose=upload.purpose,

@@ -23,9 +23,9 @@ from django.views.decorators.http import require_POST
 
 from .. import report as report_mod
 from ..access import can, job_for, membership, require
-from ..impact import fix_steps  # noqa: F401  (re-exported for templates' views)
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import FindingStatus, PhotoPurpose, Trade
+from ..impact import fix_steps  # noqa: F401  (re-exported for templates' views)
 from ..models import Event, Finding, Photo
 from ..models.findings import TransitionError
 from ..photos import PhotoError, clean_photo
@@ -81,8 +81,9 @@ def finding_size(f, u: str) -> str:
 
 def _safe_next(request, fallback: str) -> str:
     nxt = request.POST.get("next") or request.GET.get("next") or ""
-    if nxt and url_has_allowed_host_and_scheme(nxt, allowed_hosts={request.get_host()},
-                                               require_https=request.is_secure()):
+    if nxt and url_has_allowed_host_and_scheme(
+        nxt, allowed_hosts={request.get_host()}, require_https=request.is_secure()
+    ):
         return nxt
     return fallback
 
@@ -90,22 +91,35 @@ def _safe_next(request, fallback: str) -> str:
 def store_photo(job, finding, user, purpose: str, upload) -> Photo:
     """Clean and store an uploaded photo of ``finding`` (same steps as the API photo upload)."""
     clean = clean_photo(upload.read())
-    photo = Photo(job=job, wall_id=finding.wall_id, finding=finding, purpose=purpose,
-                  captured_at=clean.captured_at, bytes=len(clean.image), width=clean.width, height=clean.height,
-                  sha256=clean.sha256, received_sha256=clean.received_sha256,
-                  original_format=clean.original_format, uploaded_by=user)
+    photo = Photo(
+        job=job,
+        wall_id=finding.wall_id,
+        finding=finding,
+        purpose=purpose,
+        captured_at=clean.captured_at,
+        bytes=len(clean.image),
+        width=clean.width,
+        height=clean.height,
+        sha256=clean.sha256,
+        received_sha256=clean.received_sha256,
+        original_format=clean.original_format,
+        uploaded_by=user,
+    )
     photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
     photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
     photo.save()
-    Event.record(job, user, "photo.added", photo, {"finding": finding.pk, "purpose": purpose,
-                                                   "sha256": photo.sha256})
+    Event.record(
+        job, user, "photo.added", photo, {"finding": finding.pk, "purpose": purpose, "sha256": photo.sha256}
+    )
     return photo
 
 
 def timeline(job, wall=None, findings=()) -> list[Event]:
     """Events on a wall, its findings and their photos, oldest first (one query)."""
     ids = [str(f.pk) for f in findings]
-    q = Q(target_type="finding", target_id__in=ids) | Q(target_type="photo", data__finding__in=[f.pk for f in findings])
+    q = Q(target_type="finding", target_id__in=ids) | Q(
+        target_type="photo", data__finding__in=[f.pk for f in findings]
+    )
     if wall is not None:
         q |= Q(target_type="wall", target_id=str(wall.pk))
     return list(Event.objects.filter(job=job).filter(q).select_related("actor").order_by("at", "id"))
@@ -139,30 +153,56 @@ def crew_page(request, job_pk):
     trade = member.trade if member.is_crew else request.GET.get("trade", "")
     if trade and trade not in Trade.values:
         raise Http404("No such trade")
-    findings = (Finding.objects.live().filter(job=job, status__in=OPEN).select_related("wall", "seal_point")
-                .prefetch_related(_photos_prefetch()).order_by("wall__level", "wall__tag", "id"))
+    findings = (
+        Finding.objects.live()
+        .filter(job=job, status__in=OPEN)
+        .select_related("wall", "seal_point")
+        .prefetch_related(_photos_prefetch())
+        .order_by("wall__level", "wall__tag", "id")
+    )
     waiting = Finding.objects.live().filter(job=job, status=FindingStatus.FIXED)
     if trade:
         findings, waiting = findings.filter(trade=trade), waiting.filter(trade=trade)
     findings = list(findings)
-    return render(request, "qa/audit/crew.html", {
-        "job": job, "member": member, "trade": trade, "trade_label": dict(Trade.choices).get(trade, "all trades"),
-        "trades": Trade.choices, "by_level": _grouped(findings), "count": len(findings),
-        "waiting": waiting.count(), "cautions": cautions_for(GENERAL_CAUTIONS),
-    })
+    return render(
+        request,
+        "qa/audit/crew.html",
+        {
+            "job": job,
+            "member": member,
+            "trade": trade,
+            "trade_label": dict(Trade.choices).get(trade, "all trades"),
+            "trades": Trade.choices,
+            "by_level": _grouped(findings),
+            "count": len(findings),
+            "waiting": waiting.count(),
+            "cautions": cautions_for(GENERAL_CAUTIONS),
+        },
+    )
 
 
 @login_required
 def check_page(request, job_pk):
     """The inspector's list of findings reported fixed and waiting for a check."""
     job, member = job_for(request.user, job_pk, "verify")
-    findings = list(Finding.objects.live().filter(job=job, status=FindingStatus.FIXED)
-                    .select_related("wall", "seal_point", "fixed_by").prefetch_related(_photos_prefetch())
-                    .order_by("wall__level", "wall__tag", "id"))
-    return render(request, "qa/audit/check.html", {
-        "job": job, "member": member, "by_level": _grouped(findings), "count": len(findings),
-        "cautions": cautions_for(GENERAL_CAUTIONS),
-    })
+    findings = list(
+        Finding.objects.live()
+        .filter(job=job, status=FindingStatus.FIXED)
+        .select_related("wall", "seal_point", "fixed_by")
+        .prefetch_related(_photos_prefetch())
+        .order_by("wall__level", "wall__tag", "id")
+    )
+    return render(
+        request,
+        "qa/audit/check.html",
+        {
+            "job": job,
+            "member": member,
+            "by_level": _grouped(findings),
+            "count": len(findings),
+            "cautions": cautions_for(GENERAL_CAUTIONS),
+        },
+    )
 
 
 def _finding_for_step(request, job_pk, finding_pk, right: str):
@@ -196,8 +236,11 @@ def mark_fixed(request, job_pk, finding_pk):
     except (ValueError, PhotoError) as exc:  # TransitionError is a ValueError
         messages.error(request, _message(exc))
     else:
-        messages.success(request, f"{finding.get_kind_display()} on wall {finding.wall.tag} marked fixed. "
-                                  "The inspector will check it.")
+        messages.success(
+            request,
+            f"{finding.get_kind_display()} on wall {finding.wall.tag} marked fixed. "
+            "The inspector will check it.",
+        )
     return redirect(_safe_next(request, reverse("qa:crew", args=[job_pk])))
 
 
@@ -239,12 +282,20 @@ def report_page(request, job_pk):
     content = report_mod.report_content(job)
     digest = report_mod.content_sha256(content)
     signed = report_mod.last_sign_off(job)
-    return render(request, "qa/report/index.html", {
-        "job": job, "member": member, "digest": digest, "signed": signed,
-        "current": signed is not None and signed.data.get("sha256") == digest,
-        "can_sign": can(member, "sign"), "totals": content["totals"],
-        "cautions": cautions_for(GENERAL_CAUTIONS),
-    })
+    return render(
+        request,
+        "qa/report/index.html",
+        {
+            "job": job,
+            "member": member,
+            "digest": digest,
+            "signed": signed,
+            "current": signed is not None and signed.data.get("sha256") == digest,
+            "can_sign": can(member, "sign"),
+            "totals": content["totals"],
+            "cautions": cautions_for(GENERAL_CAUTIONS),
+        },
+    )
 
 
 @login_required
@@ -276,11 +327,22 @@ def sign_off(request, job_pk):
     digest = report_mod.content_sha256(content)
     seen = request.POST.get("sha256", "")
     if seen and seen != digest:
-        messages.error(request, "The record changed while you were reading; review the report again, then sign.")
+        messages.error(
+            request, "The record changed while you were reading; review the report again, then sign."
+        )
         return redirect("qa:report", job_pk=job.pk)
-    Event.record(job, request.user, "report.signed", job, {
-        "sha256": digest, "who": request.user.get_full_name() or request.user.username,
-        "walls": content["totals"]["walls"], "open": content["totals"]["open"]})
+    Event.record(
+        job,
+        request.user,
+        "report.signed",
+        job,
+        {
+            "sha256": digest,
+            "who": request.user.get_full_name() or request.user.username,
+            "walls": content["totals"]["walls"],
+            "open": content["totals"]["open"],
+        },
+    )
     messages.success(request, "Hand-over report signed off.")
     return redirect("qa:report", job_pk=job.pk)
 
@@ -325,13 +387,22 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
             continue
         shown_ids.add(w.pk)
         reported = a["reported"]["as_found"] if a.get("reported") else None
-        rows.append({
-            "wall": w, "a": a, "target": rating_text(a, a["target"]), "designed": rating_text(a, a["designed"]),
-            "walked": rating_text(a, a.get("walked")), "current": rating_text(a, a["as_found"]),
-            "reported": rating_text(a, reported) if reported is not None and reported != a["as_found"] else "",
-            "open": sum(r[3] in OPEN for r in mine), "fixed": sum(r[3] == FindingStatus.FIXED for r in mine),
-            "below": bool(a["shortfall"]),
-        })
+        rows.append(
+            {
+                "wall": w,
+                "a": a,
+                "target": rating_text(a, a["target"]),
+                "designed": rating_text(a, a["designed"]),
+                "walked": rating_text(a, a.get("walked")),
+                "current": rating_text(a, a["as_found"]),
+                "reported": rating_text(a, reported)
+                if reported is not None and reported != a["as_found"]
+                else "",
+                "open": sum(r[3] in OPEN for r in mine),
+                "fixed": sum(r[3] == FindingStatus.FIXED for r in mine),
+                "below": bool(a["shortfall"]),
+            }
+        )
     fix_list, walls_by_id = [], {w.pk: w for w in walls}
     steps_of = {pk: fix_steps(audits[pk]) for pk in shown_ids}
     for row in findings:
@@ -339,38 +410,62 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
             continue
         st = steps_of[row[1]].get(row[0])
         a = audits[row[1]]
-        fix_list.append({
-            "id": row[0], "wall": walls_by_id[row[1]], "kind": kinds.get(row[4], row[4]),
-            "trade": trades.get(row[2], row[2]), "point": row[5] or "", "rating": a["rating_name"],
-            "buys": st["buys"] if st else None, "alone": st["alone"] if st else None,
-            "step": st["step"] if st else None, "after": st["after"] if st else None,
-            "share": round(100 * st["share"]) if st else None, "needed": bool(st and st["needed"]),
-        })
+        fix_list.append(
+            {
+                "id": row[0],
+                "wall": walls_by_id[row[1]],
+                "kind": kinds.get(row[4], row[4]),
+                "trade": trades.get(row[2], row[2]),
+                "point": row[5] or "",
+                "rating": a["rating_name"],
+                "buys": st["buys"] if st else None,
+                "alone": st["alone"] if st else None,
+                "step": st["step"] if st else None,
+                "after": st["after"] if st else None,
+                "share": round(100 * st["share"]) if st else None,
+                "needed": bool(st and st["needed"]),
+            }
+        )
     fix_list.sort(key=lambda r: (r["buys"] is None, -(r["buys"] or 0), -(r["share"] or 0), r["wall"].tag))
     top = max((r["buys"] or 0 for r in fix_list), default=0)
     for r in fix_list:
         r["bar"] = _bar(r["buys"] or 0, top)
     repeated: dict[tuple, dict] = {}
     for row in findings:
-        item = repeated.setdefault((row[4], row[2]), {"kind": kinds.get(row[4], row[4]),
-                                                      "trade": trades.get(row[2], row[2]), "count": 0,
-                                                      "open": 0, "walls": set()})
+        item = repeated.setdefault(
+            (row[4], row[2]),
+            {
+                "kind": kinds.get(row[4], row[4]),
+                "trade": trades.get(row[2], row[2]),
+                "count": 0,
+                "open": 0,
+                "walls": set(),
+            },
+        )
         item["count"] += 1
         item["open"] += row[3] in OPEN
         item["walls"].add(row[1])
-    repeated_rows = sorted(({**v, "walls": len(v["walls"])} for v in repeated.values()),
-                           key=lambda v: (-v["count"], v["kind"]))
+    repeated_rows = sorted(
+        ({**v, "walls": len(v["walls"])} for v in repeated.values()), key=lambda v: (-v["count"], v["kind"])
+    )
     top_rep = max((v["count"] for v in repeated_rows), default=0)
     for v in repeated_rows:
         v["bar"] = _bar(v["count"], top_rep)
     levels = sorted({w.level for w in walls})
     types = sorted({(w.wall_type_id, w.wall_type.code) for w in walls}, key=lambda t: t[1])
     return {
-        "rows": rows, "filters": f, "levels": levels, "types": types, "trades": Trade.choices,
+        "rows": rows,
+        "filters": f,
+        "levels": levels,
+        "types": types,
+        "trades": Trade.choices,
         "statuses": [("open", "Open"), ("fixed", "Fixed, awaiting check"), ("verified", "Verified")],
-        "fix_list": fix_list if f["all"] else fix_list[:FIX_LIST_SHOWN], "fix_total": len(fix_list),
-        "repeated": repeated_rows[:15], "below_count": sum(r["below"] for r in rows),
-        "wall_count": len(walls), "waiting": sum(r[3] == FindingStatus.FIXED for r in findings),
+        "fix_list": fix_list if f["all"] else fix_list[:FIX_LIST_SHOWN],
+        "fix_total": len(fix_list),
+        "repeated": repeated_rows[:15],
+        "below_count": sum(r["below"] for r in rows),
+        "wall_count": len(walls),
+        "waiting": sum(r[3] == FindingStatus.FIXED for r in findings),
         "filtered": any(f[k] for k in ("level", "type", "trade", "status", "below")),
     }
 
@@ -389,12 +484,20 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
         st, f = steps[fid], by_id.get(fid)
         hits = target is not None and st["after"] >= target and not reached
         reached = reached or hits
-        audit_rows.append({
-            "finding": f, "step": st["step"], "buys": st["buys"], "alone": st["alone"],
-            "after": rating_text(summary, st["after"]), "area": open_area_text(st["open_area"], u),
-            "share": f"{100 * st['share']:.0f} %" if st["share"] >= 0.005 else "< 1 %",
-            "share_bar": _bar(round(1000 * st["share"]), 1000), "needed": st["needed"], "reaches": hits,
-        })
+        audit_rows.append(
+            {
+                "finding": f,
+                "step": st["step"],
+                "buys": st["buys"],
+                "alone": st["alone"],
+                "after": rating_text(summary, st["after"]),
+                "area": open_area_text(st["open_area"], u),
+                "share": f"{100 * st['share']:.0f} %" if st["share"] >= 0.005 else "< 1 %",
+                "share_bar": _bar(round(1000 * st["share"]), 1000),
+                "needed": st["needed"],
+                "reaches": hits,
+            }
+        )
     chart_obj = chart.tl_chart(summary)
     crew_trade = member.trade if member.is_crew else None
     items = []
@@ -402,11 +505,17 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
         mine = crew_trade is None or f.trade == crew_trade
         if member.is_crew and not mine:
             continue
-        items.append({"f": f, "size": finding_size(f, u), "photos": list(f.photos.all()),
-                      "step": steps.get(f.pk),
-                      "can_fix": can(member, "fix") and mine and f.status in OPEN,
-                      "can_check": can(member, "verify") and f.status == FindingStatus.FIXED,
-                      "can_reopen": can(member, "verify") and f.status == FindingStatus.VERIFIED})
+        items.append(
+            {
+                "f": f,
+                "size": finding_size(f, u),
+                "photos": list(f.photos.all()),
+                "step": steps.get(f.pk),
+                "can_fix": can(member, "fix") and mine and f.status in OPEN,
+                "can_check": can(member, "verify") and f.status == FindingStatus.FIXED,
+                "can_reopen": can(member, "verify") and f.status == FindingStatus.VERIFIED,
+            }
+        )
     events = timeline(job, wall, findings)
     labels = {("wall", str(wall.pk)): f"wall {wall.tag}"}
     labels.update({("finding", str(f.pk)): f"{f.get_kind_display().lower()} #{f.pk}" for f in findings})
@@ -414,21 +523,32 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
         if e.target_type == "photo" and isinstance(e.data, dict) and e.data.get("finding"):
             labels[("photo", e.target_id)] = f"photo of #{e.data['finding']}"
     names = dict(summary.get("flag_text", {}))
-    unmodelled = [{"finding": by_id.get(x["finding"]), "id": x["finding"], "reason": x["reason"]}
-                  for x in summary.get("unmodelled", [])]
+    unmodelled = [
+        {"finding": by_id.get(x["finding"]), "id": x["finding"], "reason": x["reason"]}
+        for x in summary.get("unmodelled", [])
+    ]
     s = summary
     return {
-        "summary": s, "audit_rows": audit_rows, "chart_svg": chart.svg(chart_obj), "legend": chart.legend(chart_obj),
+        "summary": s,
+        "audit_rows": audit_rows,
+        "chart_svg": chart.svg(chart_obj),
+        "legend": chart.legend(chart_obj),
         "ratings": {
             "designed": rating_text(s, s.get("designed"), s.get("designed_terms")),
-            "walked": rating_text(s, s.get("walked"), ((s.get("views") or {}).get("walked") or {}).get("terms")),
+            "walked": rating_text(
+                s, s.get("walked"), ((s.get("views") or {}).get("walked") or {}).get("terms")
+            ),
             "current": rating_text(s, s.get("as_found"), verified.get("terms")),
-            "reported": rating_text(s, (s.get("reported") or {}).get("as_found"),
-                                    (s.get("reported") or {}).get("terms")),
+            "reported": rating_text(
+                s, (s.get("reported") or {}).get("as_found"), (s.get("reported") or {}).get("terms")
+            ),
             "target": rating_text(s, target),
         },
-        "reaches": verified.get("reaches_target"), "needed_count": len(verified.get("needed") or []),
-        "items": items, "events": [{"e": e, "text": event_text(e, labels)} for e in reversed(events)],
-        "flags": [names[k] for k in s.get("flags", [])], "unmodelled": unmodelled,
+        "reaches": verified.get("reaches_target"),
+        "needed_count": len(verified.get("needed") or []),
+        "items": items,
+        "events": [{"e": e, "text": event_text(e, labels)} for e in reversed(events)],
+        "flags": [names[k] for k in s.get("flags", [])],
+        "unmodelled": unmodelled,
         "fixed_waiting": sum(f.status == FindingStatus.FIXED for f in findings),
     }

@@ -53,7 +53,8 @@ def job_page(request, job_pk):
     findings = list(Finding.objects.live().filter(job=job).values_list(
         "id", "wall_id", "trade", "status", "kind", "seal_point__label"))
     ctx = job_overview(request.GET, job, walls, audits, findings)
-    ctx.update({"job": job, "member": member, "can_fix": can(member, "fix"), "can_verify": can(member, "verify"),
+    ctx.update({"job": job, "member": member, "can_fix": can(member, "fix"),
+                "can_verify": can(member, "verify"),
                 "cautions": cautions_for(GENERAL_CAUTIONS)})
     return render(request, "qa/job.html", ctx)
 
@@ -71,13 +72,16 @@ def wall_page(request, job_pk, wall_pk):
     findings = list(
         Finding.objects.live().filter(wall=wall)
         .select_related("seal_point", "created_by", "fixed_by", "verified_by")
-        .prefetch_related(Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at")))
+        .prefetch_related(
+            Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
+        )
     )
     ctx = wall_overview(job, member, wall, summary, findings)
     caution_keys = list(GENERAL_CAUTIONS) + sorted({p.caution for p in points if p.caution})
     ctx.update({
         "job": job, "member": member, "wall": wall, "points": points,
-        "length": units.fmt(wall.length_m, "size", job.units), "height": units.fmt(wall.height_m, "size", job.units),
+        "length": units.fmt(wall.length_m, "size", job.units),
+        "height": units.fmt(wall.height_m, "size", job.units),
         "cautions": cautions_for(dict.fromkeys(caution_keys)), "can_edit": can(member, "edit"),
     })
     return render(request, "qa/wall.html", ctx)

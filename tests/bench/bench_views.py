@@ -32,9 +32,11 @@ PATTERNS = [
     ("open_area", "a", "drywall", {"area_m2": 0.004}),
     ("bridge", "through", "framing", {"count": 1}),
 ]
-LAYERS = {"leaves": [{"layers": ["gypsum_15.9_x"]}, {"layers": ["gypsum_15.9_x"]}],
-          "cavity": {"depth": 0.140, "absorber": {"thickness": 0.089, "flow_resistivity": 10000}},
-          "connection": {"type": "staggered_studs", "spacing": 0.406}}
+LAYERS = {
+    "leaves": [{"layers": ["gypsum_15.9_x"]}, {"layers": ["gypsum_15.9_x"]}],
+    "cavity": {"depth": 0.140, "absorber": {"thickness": 0.089, "flow_resistivity": 10000}},
+    "connection": {"type": "staggered_studs", "spacing": 0.406},
+}
 LAB_50 = [18, 22, 26, 29, 32, 35, 38, 41, 44, 47, 48, 49, 50, 51, 52, 52, 52, 52, 52, 52, 52]
 
 
@@ -53,29 +55,75 @@ def build_job(n_walls: int = 300, n_findings: int = 1000, seed: int = 1, passwor
     User = get_user_model()
     tag = f"{n_walls}x{n_findings}x{seed}"
     users = {}
-    for name, role, trade in (("inspector", "inspector", ""), ("owner", "owner", ""), ("drywall", "crew", "drywall")):
+    for name in ("inspector", "owner", "drywall"):
         users[name] = User.objects.create_user(f"b-{name}-{tag}", password=password)
-    job = Job.objects.create(name=f"Bench block {tag}", units="imperial", rule_set="Bench: STC 50 between units")
-    for name, role, trade in (("inspector", "inspector", ""), ("owner", "owner", ""), ("drywall", "crew", "drywall")):
+    job = Job.objects.create(
+        name=f"Bench block {tag}", units="imperial", rule_set="Bench: STC 50 between units"
+    )
+    for name, role, trade in (
+        ("inspector", "inspector", ""),
+        ("owner", "owner", ""),
+        ("drywall", "crew", "drywall"),
+    ):
         Member.objects.create(job=job, user=users[name], role=role, trade=trade)
     tl, rating = resolve_wall_type_curve(tl=[], tl_source="predicted", layers=LAYERS, rating_scheme="stc")
-    predicted = WallType.objects.create(job=job, code="P1", name="Staggered studs", construction="staggered_stud",
-                                        layers=LAYERS, tl=tl, design_rating=rating, thickness_m=0.172)
-    lab = WallType.objects.create(job=job, code="L1", name="Lab stud wall", construction="wood_stud", tl=LAB_50,
-                                  tl_source="lab", design_rating=50, thickness_m=0.12)
-    walls = Wall.objects.bulk_create([
-        Wall(job=job, wall_type=predicted if i % 3 else lab, tag=f"{1 + i // 20}-{i % 20:02d}", level=str(1 + i // 20),
-             location=f"between unit {i} and {i + 1}", length_m=round(rng.uniform(4, 10), 2), height_m=2.7,
-             target_rating=50 if i % 7 else 55)
-        for i in range(n_walls)])
-    Opening.objects.bulk_create([Opening(wall=w, kind="door", label="Entry door", width_m=0.91, height_m=2.13,
-                                         rating=30) for w in walls[::10]])
+    predicted = WallType.objects.create(
+        job=job,
+        code="P1",
+        name="Staggered studs",
+        construction="staggered_stud",
+        layers=LAYERS,
+        tl=tl,
+        design_rating=rating,
+        thickness_m=0.172,
+    )
+    lab = WallType.objects.create(
+        job=job,
+        code="L1",
+        name="Lab stud wall",
+        construction="wood_stud",
+        tl=LAB_50,
+        tl_source="lab",
+        design_rating=50,
+        thickness_m=0.12,
+    )
+    walls = Wall.objects.bulk_create(
+        [
+            Wall(
+                job=job,
+                wall_type=predicted if i % 3 else lab,
+                tag=f"{1 + i // 20}-{i % 20:02d}",
+                level=str(1 + i // 20),
+                location=f"between unit {i} and {i + 1}",
+                length_m=round(rng.uniform(4, 10), 2),
+                height_m=2.7,
+                target_rating=50 if i % 7 else 55,
+            )
+            for i in range(n_walls)
+        ]
+    )
+    Opening.objects.bulk_create(
+        [
+            Opening(wall=w, kind="door", label="Entry door", width_m=0.91, height_m=2.13, rating=30)
+            for w in walls[::10]
+        ]
+    )
     findings = []
     for n in range(n_findings):
         kind, face, trade, geo = PATTERNS[n % len(PATTERNS)]
-        findings.append(Finding(job=job, wall=walls[rng.randrange(n_walls)], kind=kind, face=face, trade=trade,
-                                created_by=users["inspector"], at_edge=kind == "slit",
-                                status=rng.choice(("open", "open", "open", "fixed", "verified")), **geo))
+        findings.append(
+            Finding(
+                job=job,
+                wall=walls[rng.randrange(n_walls)],
+                kind=kind,
+                face=face,
+                trade=trade,
+                created_by=users["inspector"],
+                at_edge=kind == "slit",
+                status=rng.choice(("open", "open", "open", "fixed", "verified")),
+                **geo,
+            )
+        )
     Finding.objects.bulk_create(findings)
     return job, users
 
@@ -101,8 +149,8 @@ def main() -> None:
     settings.CACHES["default"].setdefault("OPTIONS", {})["MAX_ENTRIES"] = 100_000
     from django.core.cache import cache
     from django.test import Client
-    from django.test.utils import setup_test_environment
     from django.test.runner import DiscoverRunner
+    from django.test.utils import setup_test_environment
 
     setup_test_environment()
     runner = DiscoverRunner(verbosity=0)
@@ -126,14 +174,18 @@ def main() -> None:
             report.render_pdf(job, report.report_content(job))
 
         client.get(url)  # imports, template compilation
-        figures = [("job view, cold cache", median_ms(cold), 1500.0),
-                   ("job view, warm cache", median_ms(warm), 300.0),
-                   ("hand-over PDF", median_ms(pdf), 10000.0)]
+        figures = [
+            ("job view, cold cache", median_ms(cold), 1500.0),
+            ("job view, warm cache", median_ms(warm), 300.0),
+            ("hand-over PDF", median_ms(pdf), 10000.0),
+        ]
         size = len(report.render_pdf(job, report.report_content(job)))
     finally:
         runner.teardown_databases(old)
-    print(f"machine: {platform.node()} {platform.machine()} {platform.processor() or ''} "
-          f"cpus={os.cpu_count()} python={platform.python_version()} ({platform.system()} {platform.release()})")
+    print(
+        f"machine: {platform.node()} {platform.machine()} {platform.processor() or ''} "
+        f"cpus={os.cpu_count()} python={platform.python_version()} ({platform.system()} {platform.release()})"
+    )
     print("job: 300 walls x 1000 findings; median of 5 runs")
     for name, ms, target in figures:
         print(f"{name:<24} {ms:9.1f} ms   target {target:7.0f} ms   ratio {ms / target:5.2f}")

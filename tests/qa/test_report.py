@@ -1,0 +1,127 @@
+"""Hand-over report: content hash, PDF text, punch-list CSV with formula cells neutralised.
+
+CSV injection rule: a cell starting with = + - @ (or tab / carriage return) is prefixed with a quote
+(OWASP "CSV Injection" guidance). PDF text is read from the inflated content streams with zlib, no
+PDF library involved.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+import zlib
+
+import pytest
+
+from qa import report
+from qa.models import Finding
+
+
+def pdf_strings(data: bytes) -> str:
+    chunks = []
+    for m in re.finditer(rb"stream\r?\n(.*?)\r?\nendstream", data, re.S):
+        raw = m.group(1)
+        try:
+            raw = zlib.decompress(raw)
+        except zlib.error:
+            pass
+        chunks.append(raw.decode("latin-1"))
+    shown = re.findall(r"\(((?:[^()\\]|\\.)*)\)\s*Tj", "".join(chunks))
+    return " ".join(re.sub(r"\\(.)", r"\1", s) for s in shown)
+
+
+@pytest.fixture
+def findings(world):
+    made = [
+        Finding.objects.create(
+            job=world.job,
+            wall=world.wall,
+            kind="slit",
+            trade="drywall",
+            width_m=0.006,
+            length_m=1.2,
+            created_by=world.inspector,
+            note='=HYPERLINK("http://x")',
+        ),
+        Finding.objects.create(
+            job=world.job,
+            wall=world.wall,
+            kind="hole",
+            trade="electrical",
+            diameter_m=0.012,
+            count=2,
+            created_by=world.inspector,
+            note="+1 box",
+        ),
+    ]
+    made[1].mark_fixed(world.electrician, "-pad fitted")
+    return made
+
+
+@pytest.mark.parametrize(
+    "text, expected",
+    [
+        ("=1+1", "'=1+1"),
+        ("+1", "'+1"),
+        ("-3", "'-3"),
+        ("@SUM(A1)", "'@SUM(A1)"),
+        ("\tx", "'\tx"),
+        ("plain", "plain"),
+        (None, ""),
+        (12, "12"),
+    ],
+)
+def test_neutralise(text, expected):
+    assert report.neutralise(text) == expected
+
+
+def test_csv_punch_list(world, findings):
+    rows = list(csv.reader(io.StringIO(report.punch_list_csv(world.job))))
+    assert rows[0][0] == "finding" and len(rows) == 3
+    notes = {r[0]: r for r in rows[1:]}
+    assert notes[str(findings[0].pk)][11] == '\'=HYPERLINK("http://x")'
+    assert notes[str(findings[1].pk)][14] == "'-pad fitted"
+    assert all(not cell.startswith(("=", "+", "-", "@")) for r in rows for cell in r)
+
+
+def test_content_hash_stable_and_changes_with_the_record(world, findings):
+    a = report.content_sha256(report.report_content(world.job))
+    assert a == report.content_sha256(report.report_content(world.job))
+    findings[1].verify(world.inspector)
+    assert report.content_sha256(report.report_content(world.job)) != a
+
+
+def test_pdf_states_walls_findings_cautions_rule_set(world, findings):
+    world.job.rule_set = "Test spec: STC 50 between units"
+    world.job.save()
+    content = report.report_content(world.job)
+    data = report.render_pdf(world.job, content)
+    assert data.startswith(b"%PDF-")
+    text = pdf_strings(data)
+    for expected in (
+        "Hand-over report: Test Block A",
+        "Rule set: Test spec: STC 50 between units",
+        "Wall 2-01",
+        f"#{findings[0].pk} Slit (long narrow gap)",
+        "Fixed by elec",
+        "Estimates, not field tests",
+        "Acoustical sealant is not a firestop",
+        "Frequency (Hz)",
+        "Transmission loss (dB)",
+        report.content_sha256(content),
+    ):
+        assert expected in text, expected
+    assert content["totals"] == {
+        "walls": 1,
+        "below_target": 1,
+        "findings": 2,
+        "open": 1,
+        "fixed": 1,
+        "verified": 0,
+    }
+
+
+def test_pdf_text_is_latin1_safe():
+    assert report.pdf_text("6 mm × 900 mm — ⌀ 22 mm ≥ 1 m²") == "6 mm × 900 mm - dia. 22 mm >= 1 m²"
+    assert report.pdf_text("漢") == "?"
