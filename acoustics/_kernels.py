@@ -191,7 +191,7 @@ def stc_block(x: np.ndarray, round_tl: bool, ws: Work, label: str, span: np.ndar
         cand = res + np.uint8(step)
         np.maximum(v, cand, out=dev)
         dev -= v
-        ok = dev.sum(axis=0, dtype=np.uint8) <= 32
+        ok = dev.sum(axis=0, dtype=np.uint8) <= 33
         ok &= cand <= 8
         res = np.where(ok, cand, res)
     umin += res

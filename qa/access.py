@@ -28,7 +28,7 @@ def membership(user, job_id) -> Member:
         raise Http404("No such job")
     try:
         return Member.objects.select_related("job").get(job_id=job_id, user=user, active=True)
-    except (Member.DoesNotExist, ValueError, TypeError):
+    except (Member.DoesNotExist, ValueError, TypeError, OverflowError):
         raise Http404("No such job") from None
 
 

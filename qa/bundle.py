@@ -24,8 +24,13 @@ from .choices import Face, FindingStatus, GapKind, SealStatus, Trade
 from .models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 
 BUNDLE_FORMAT = 1
-_GAP_FIELDS = {"width_m": "width", "length_m": "length", "diameter_m": "diameter", "depth_m": "depth",
-               "area_m2": "area"}
+_GAP_FIELDS = {
+    "width_m": "width",
+    "length_m": "length",
+    "diameter_m": "diameter",
+    "depth_m": "depth",
+    "area_m2": "area",
+}
 
 
 def _plain(value: Any) -> Any:
@@ -52,8 +57,13 @@ def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
     gap = dict(point.gap or {})
     if "length_fraction" in gap and "length_m" not in gap:
         gap["length_m"] = gap.pop("length_fraction") * wall.length_m
-    out: dict[str, Any] = {"kind": point.gap_kind, "face": point.face, "trade": point.trade,
-                           "at_edge": point.at_edge, "count": int(gap.get("count", 1) or 1)}
+    out: dict[str, Any] = {
+        "kind": point.gap_kind,
+        "face": point.face,
+        "trade": point.trade,
+        "at_edge": point.at_edge,
+        "count": int(gap.get("count", 1) or 1),
+    }
     for si, name in _GAP_FIELDS.items():
         if gap.get(si) is not None:
             out[name] = round(units.from_si(gap[si], units.FIELD_QUANTITY[si], job_units), 4)
@@ -63,8 +73,22 @@ def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
 
 
 #: Audit summary keys the walk shows; the curves and alternative views stay on the server.
-AUDIT_KEYS = ("scheme", "rating_name", "target", "designed", "as_found", "walked", "shortfall", "error", "order",
-              "after", "needed", "flags", "flag_text", "unmodelled")
+AUDIT_KEYS = (
+    "scheme",
+    "rating_name",
+    "target",
+    "designed",
+    "as_found",
+    "walked",
+    "shortfall",
+    "error",
+    "order",
+    "after",
+    "needed",
+    "flags",
+    "flag_text",
+    "unmodelled",
+)
 
 
 def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
@@ -72,11 +96,21 @@ def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
     for key in ("order", "needed"):
         if out.get(key) is not None:
             out[key] = [client_ids.get(i, str(i)) for i in out[key]]
-    out["rows"] = [{"finding": client_ids.get(r.get("finding"), str(r.get("finding"))), "gain": r.get("gain"),
-                    "label": r.get("label"), "status": r.get("status")} for r in summary.get("rows") or []]
+    out["rows"] = [
+        {
+            "finding": client_ids.get(r.get("finding"), str(r.get("finding"))),
+            "gain": r.get("gain"),
+            "label": r.get("label"),
+            "status": r.get("status"),
+        }
+        for r in summary.get("rows") or []
+    ]
     # Which findings this audit counted: the walk marks the ones recorded or changed since as missing.
-    out["includes"] = [client_ids[i] for i in client_ids if i in set(summary.get("views", {}).get(
-        "walked", {}).get("order") or summary.get("order") or [])]
+    out["includes"] = [
+        client_ids[i]
+        for i in client_ids
+        if i in set(summary.get("views", {}).get("walked", {}).get("order") or summary.get("order") or [])
+    ]
     return _plain(out)
 
 
@@ -101,29 +135,47 @@ def build_bundle(job: Job, member: Member) -> dict:
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
     wall_by_id = {w.id: w for w in walls}
     points = SealPoint.objects.filter(wall__job=job, wall__removed=False, removed=False).order_by(
-        "wall_id", "position", "id")
+        "wall_id", "position", "id"
+    )
     findings = (
-        Finding.objects.live().filter(job=job).select_related("created_by")
+        Finding.objects.live()
+        .filter(job=job)
+        .select_related("created_by")
         .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
     )
     if member.is_crew:
         findings = findings.filter(trade=member.trade)
     photos = Photo.objects.filter(job=job, removed=False).only(
-        "id", "wall_id", "finding_id", "purpose", "width", "height", "bytes", "sha256", "captured_at")
+        "id", "wall_id", "finding_id", "purpose", "width", "height", "bytes", "sha256", "captured_at"
+    )
     if member.is_crew:
         photos = photos.filter(finding__trade=member.trade)
     audits = _audits(job, walls)
 
     body = {
         "format": BUNDLE_FORMAT,
-        "job": {"id": job.id, "name": job.name, "address": job.address, "units": u,
-                "rating_scheme": job.rating_scheme, "rule_set": job.rule_set,
-                "symbols": {q: units.symbol(q, u) for q in ("size", "gap", "area")}},
-        "me": {"username": member.user.username, "name": member.user.get_full_name() or member.user.username,
-               "role": member.role, "trade": member.trade or None},
+        "job": {
+            "id": job.id,
+            "name": job.name,
+            "address": job.address,
+            "units": u,
+            "rating_scheme": job.rating_scheme,
+            "rule_set": job.rule_set,
+            "symbols": {q: units.symbol(q, u) for q in ("size", "gap", "area")},
+        },
+        "me": {
+            "username": member.user.username,
+            "name": member.user.get_full_name() or member.user.username,
+            "role": member.role,
+            "trade": member.trade or None,
+        },
         "members": [
-            {"username": m.user.username, "name": m.user.get_full_name() or m.user.username, "role": m.role,
-             "trade": m.trade or None}
+            {
+                "username": m.user.username,
+                "name": m.user.get_full_name() or m.user.username,
+                "role": m.role,
+                "trade": m.trade or None,
+            }
             for m in Member.objects.filter(job=job, active=True).select_related("user").order_by("id")
         ],
         "choices": {
@@ -136,40 +188,82 @@ def build_bundle(job: Job, member: Member) -> dict:
         "cautions": {k: {"title": c.title, "text": c.text} for k, c in CAUTIONS.items()},
         "general_cautions": list(GENERAL_CAUTIONS),
         "wall_types": [
-            {"id": t.id, "code": t.code, "name": t.name, "construction": t.construction,
-             "design_rating": t.design_rating, "rating_scheme": t.rating_scheme, "fire_rated": t.fire_rated,
-             "thickness": round(units.from_si(t.thickness_m, "gap", u), 3)}
+            {
+                "id": t.id,
+                "code": t.code,
+                "name": t.name,
+                "construction": t.construction,
+                "design_rating": t.design_rating,
+                "rating_scheme": t.rating_scheme,
+                "fire_rated": t.fire_rated,
+                "thickness": round(units.from_si(t.thickness_m, "gap", u), 3),
+            }
             for t in WallType.objects.filter(job=job)
         ],
         "walls": [
-            {"id": w.id, "tag": w.tag, "level": w.level, "location": w.location, "wall_type": w.wall_type_id,
-             "face_a_label": w.face_a_label, "face_b_label": w.face_b_label,
-             "length": round(units.from_si(w.length_m, "size", u), 3),
-             "height": round(units.from_si(w.height_m, "size", u), 3),
-             "target_rating": w.target_rating, "rating_scheme": w.rating_scheme, "version": w.version,
-             "fire_rated": w.wall_type.fire_rated,
-             "url": reverse("qa:wall", kwargs={"job_pk": job.id, "wall_pk": w.id})}
+            {
+                "id": w.id,
+                "tag": w.tag,
+                "level": w.level,
+                "location": w.location,
+                "wall_type": w.wall_type_id,
+                "face_a_label": w.face_a_label,
+                "face_b_label": w.face_b_label,
+                "length": round(units.from_si(w.length_m, "size", u), 3),
+                "height": round(units.from_si(w.height_m, "size", u), 3),
+                "target_rating": w.target_rating,
+                "rating_scheme": w.rating_scheme,
+                "version": w.version,
+                "fire_rated": w.wall_type.fire_rated,
+                "url": reverse("qa:wall", kwargs={"job_pk": job.id, "wall_pk": w.id}),
+            }
             for w in walls
         ],
         "openings": [
-            {"id": o.id, "wall": o.wall_id, "kind": o.kind, "label": o.label,
-             "width": round(units.from_si(o.width_m, "size", u), 3),
-             "height": round(units.from_si(o.height_m, "size", u), 3), "rating": o.rating,
-             "fire_rated": o.fire_rated}
+            {
+                "id": o.id,
+                "wall": o.wall_id,
+                "kind": o.kind,
+                "label": o.label,
+                "width": round(units.from_si(o.width_m, "size", u), 3),
+                "height": round(units.from_si(o.height_m, "size", u), 3),
+                "rating": o.rating,
+                "fire_rated": o.fire_rated,
+            }
             for o in Opening.objects.filter(wall__job=job, wall__removed=False, removed=False)
         ],
         "seal_points": [
-            {"id": p.id, "wall": p.wall_id, "label": p.label, "face": p.face, "trade": p.trade,
-             "correct": p.correct, "usual_defect": p.usual_defect, "caution": p.caution, "status": p.status,
-             "version": p.version, "position": p.position, "prefill": prefill(p, wall_by_id[p.wall_id], u)}
+            {
+                "id": p.id,
+                "wall": p.wall_id,
+                "label": p.label,
+                "face": p.face,
+                "trade": p.trade,
+                "correct": p.correct,
+                "usual_defect": p.usual_defect,
+                "caution": p.caution,
+                "status": p.status,
+                "version": p.version,
+                "position": p.position,
+                "prefill": prefill(p, wall_by_id[p.wall_id], u),
+            }
             for p in points
         ],
         "findings": [dict(d) for d in FindingSerializer(findings, many=True, context={"job": job}).data],
         "photos": [
-            {"id": str(p.id), "wall": p.wall_id, "finding": p.finding_id, "purpose": p.purpose,
-             "width": p.width, "height": p.height, "bytes": p.bytes, "sha256": p.sha256,
-             "thumbnail_url": reverse("qa:photo-file", kwargs={"job_pk": job.id, "photo_id": p.id,
-                                                                "kind": "thumb"})}
+            {
+                "id": str(p.id),
+                "wall": p.wall_id,
+                "finding": p.finding_id,
+                "purpose": p.purpose,
+                "width": p.width,
+                "height": p.height,
+                "bytes": p.bytes,
+                "sha256": p.sha256,
+                "thumbnail_url": reverse(
+                    "qa:photo-file", kwargs={"job_pk": job.id, "photo_id": p.id, "kind": "thumb"}
+                ),
+            }
             for p in photos
         ],
         "conflicts": [],
@@ -178,7 +272,8 @@ def build_bundle(job: Job, member: Member) -> dict:
         from .sync import conflict_data
 
         open_conflicts = Conflict.objects.filter(finding__job=job, resolution="").select_related(
-            "finding", "created_by")
+            "finding", "created_by"
+        )
         body["conflicts"] = [conflict_data(c, job) for c in open_conflicts]
     if audits is not None:
         body["audits"] = audits

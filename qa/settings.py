@@ -189,6 +189,8 @@ CACHES = {
     "default": {
         "BACKEND": "django.core.cache.backends.db.DatabaseCache",
         "LOCATION": "sealwalk_cache",
+        # One leak audit per wall plus its stamps: a 300-wall job must not evict itself.
+        "OPTIONS": {"MAX_ENTRIES": 100_000},
     }
 }
 

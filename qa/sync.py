@@ -42,8 +42,21 @@ from .models.findings import TransitionError
 
 MAX_BATCH = 500
 #: Fields a device may change on a finding with ``finding.update`` (API names, job units).
-EDITABLE = ("kind", "face", "width", "length", "diameter", "depth", "area", "fill", "at_edge", "count", "trade",
-            "note", "seal_point")
+EDITABLE = (
+    "kind",
+    "face",
+    "width",
+    "length",
+    "diameter",
+    "depth",
+    "area",
+    "fill",
+    "at_edge",
+    "count",
+    "trade",
+    "note",
+    "seal_point",
+)
 
 
 class Reject(Exception):
@@ -55,14 +68,17 @@ class Reject(Exception):
 
 
 class _Context:
-    def __init__(self, job: Job, member: Member, device_id: str, device_at: datetime | None,
-                 op_row_holder: dict):
+    def __init__(
+        self, job: Job, member: Member, device_id: str, device_at: datetime | None, op_row_holder: dict
+    ):
         self.job, self.member, self.user = job, member, member.user
         self.device_id, self.device_at = device_id, device_at
         self.holder = op_row_holder  # filled with the SyncOperation once it exists
 
     def event(self, verb: str, target, data: dict | None = None) -> None:
-        Event.record(self.job, self.user, verb, target, data, device_at=self.device_at, device_id=self.device_id)
+        Event.record(
+            self.job, self.user, verb, target, data, device_at=self.device_at, device_id=self.device_id
+        )
 
     @property
     def lifecycle_event(self) -> dict:
@@ -113,16 +129,24 @@ def _seal_point_status(ctx: _Context, payload: dict, base: int | None) -> dict:
     status = payload.get("status")
     if status not in SealStatus.values:
         raise Reject({"status": [f"must be one of {', '.join(SealStatus.values)}"]})
-    point = SealPoint.objects.select_for_update().filter(
-        pk=payload.get("seal_point") if str(payload.get("seal_point", "")).isdigit() else None,
-        wall__job=ctx.job, removed=False,
-    ).first()
+    point = (
+        SealPoint.objects.select_for_update()
+        .filter(
+            pk=payload.get("seal_point") if str(payload.get("seal_point", "")).isdigit() else None,
+            wall__job=ctx.job,
+            removed=False,
+        )
+        .first()
+    )
     if point is None:
         raise Reject({"seal_point": ["no such seal point in this job"]})
     if base is not None and base < point.version and status != point.status:
         # Someone else ticked it since; their tick stands, the device's is kept in this answer.
-        return {"status": "conflict", "seal_point": _seal_point_data(point),
-                "device_version": {"status": status, "base_version": base}}
+        return {
+            "status": "conflict",
+            "seal_point": _seal_point_data(point),
+            "device_version": {"status": status, "base_version": base},
+        }
     old = point.status
     point.status, point.version = status, point.version + 1
     point.checked_by, point.checked_at = ctx.user, timezone.now()
@@ -147,8 +171,11 @@ def _finding_create(ctx: _Context, payload: dict, base: int | None) -> dict:
     serializer = FindingSerializer(data=payload, context={"job": ctx.job})
     if not serializer.is_valid():
         raise Reject(_plain_errors(serializer.errors))
-    finding = serializer.save(job=ctx.job, created_by=ctx.user,
-                              device_time=serializer.validated_data.get("device_time") or ctx.device_at)
+    finding = serializer.save(
+        job=ctx.job,
+        created_by=ctx.user,
+        device_time=serializer.validated_data.get("device_time") or ctx.device_at,
+    )
     point = finding.seal_point
     result = {"status": "applied"}
     if point is not None and point.status != SealStatus.DEFECT:
@@ -156,8 +183,11 @@ def _finding_create(ctx: _Context, payload: dict, base: int | None) -> dict:
         point.checked_by, point.checked_at = ctx.user, timezone.now()
         point.save(update_fields=["status", "version", "checked_by", "checked_at"])
         result["seal_point"] = _seal_point_data(point)
-    ctx.event("finding.created", finding, {"wall": finding.wall.tag, "kind": finding.kind, "trade": finding.trade,
-                                            "version": finding.version})
+    ctx.event(
+        "finding.created",
+        finding,
+        {"wall": finding.wall.tag, "kind": finding.kind, "trade": finding.trade, "version": finding.version},
+    )
     result["finding"] = finding_data(finding, ctx.job)
     return result
 
@@ -178,21 +208,36 @@ def apply_finding_changes(ctx_job: Job, finding: Finding, changes: dict, user, e
     if not serializer.is_valid():
         raise Reject(_plain_errors(serializer.errors))
     finding = serializer.save(version=finding.version + 1)
-    Event.record(ctx_job, user, "finding.edited", finding,
-                 {"fields": sorted(serializer.validated_data), "version": finding.version}, **event)
+    Event.record(
+        ctx_job,
+        user,
+        "finding.edited",
+        finding,
+        {"fields": sorted(serializer.validated_data), "version": finding.version},
+        **event,
+    )
     return finding
 
 
 def _stale(ctx: _Context, finding: Finding, base: int, device_version: dict) -> dict:
     conflict = Conflict.objects.create(
-        finding=finding, base_version=base, server_version=finding_data(finding, ctx.job),
-        device_version=device_version, created_by=ctx.user,
+        finding=finding,
+        base_version=base,
+        server_version=finding_data(finding, ctx.job),
+        device_version=device_version,
+        created_by=ctx.user,
     )
     ctx.holder["conflict"] = conflict
-    ctx.event("finding.conflict", finding, {"conflict": conflict.id, "base_version": base,
-                                             "server_version": finding.version})
-    return {"status": "conflict", "conflict": conflict_data(conflict, ctx.job),
-            "finding": finding_data(finding, ctx.job)}
+    ctx.event(
+        "finding.conflict",
+        finding,
+        {"conflict": conflict.id, "base_version": base, "server_version": finding.version},
+    )
+    return {
+        "status": "conflict",
+        "conflict": conflict_data(conflict, ctx.job),
+        "finding": finding_data(finding, ctx.job),
+    }
 
 
 def _finding_update(ctx: _Context, payload: dict, base: int | None) -> dict:
@@ -250,8 +295,16 @@ def conflict_data(conflict: Conflict, job: Job) -> dict:
     }
 
 
-def resolve_conflict(job: Job, member: Member, conflict_id, keep: str, *, device_at=None, device_id: str = "",
-                     version: int | None = None) -> dict:
+def resolve_conflict(
+    job: Job,
+    member: Member,
+    conflict_id,
+    keep: str,
+    *,
+    device_at=None,
+    device_id: str = "",
+    version: int | None = None,
+) -> dict:
     """Settle a conflict: keep the server's version or apply the device's. Inspector only.
 
     Runs inside the caller's transaction. Raises :class:`Reject` on a bad request.
@@ -262,9 +315,12 @@ def resolve_conflict(job: Job, member: Member, conflict_id, keep: str, *, device
         raise Reject({"non_field_errors": [str(exc)]}) from None
     if keep not in ("server", "device"):
         raise Reject({"keep": ["must be 'server' or 'device'"]})
-    conflict = Conflict.objects.select_for_update().filter(
-        pk=conflict_id if str(conflict_id).isdigit() else None, finding__job=job
-    ).select_related("finding").first()
+    conflict = (
+        Conflict.objects.select_for_update()
+        .filter(pk=conflict_id if str(conflict_id).isdigit() else None, finding__job=job)
+        .select_related("finding")
+        .first()
+    )
     if conflict is None:
         raise Reject({"conflict": ["no such conflict in this job"]})
     if conflict.resolution:
@@ -282,15 +338,27 @@ def resolve_conflict(job: Job, member: Member, conflict_id, keep: str, *, device
             finding = apply_finding_changes(job, finding, device.get("changes", {}), member.user, event)
     conflict.resolution, conflict.resolved_by, conflict.resolved_at = keep, member.user, timezone.now()
     conflict.save(update_fields=["resolution", "resolved_by", "resolved_at"])
-    Event.record(job, member.user, "conflict.resolved", conflict, {"keep": keep, "finding": finding.id},
-                 **event)
+    Event.record(
+        job, member.user, "conflict.resolved", conflict, {"keep": keep, "finding": finding.id}, **event
+    )
     conflict.finding = finding
-    return {"status": "applied", "conflict": conflict_data(conflict, job), "finding": finding_data(finding, job)}
+    return {
+        "status": "applied",
+        "conflict": conflict_data(conflict, job),
+        "finding": finding_data(finding, job),
+    }
 
 
 def _conflict_resolve(ctx: _Context, payload: dict, base: int | None) -> dict:
-    return resolve_conflict(ctx.job, ctx.member, payload.get("conflict"), payload.get("keep"),
-                            device_at=ctx.device_at, device_id=ctx.device_id, version=base)
+    return resolve_conflict(
+        ctx.job,
+        ctx.member,
+        payload.get("conflict"),
+        payload.get("keep"),
+        device_at=ctx.device_at,
+        device_id=ctx.device_id,
+        version=base,
+    )
 
 
 HANDLERS: dict[str, Callable] = {
@@ -353,8 +421,14 @@ def apply_operation(job: Job, member: Member, raw: dict, device_id: str = "") ->
             except Reject as exc:
                 holder.clear()
                 answer.update(status="rejected", errors=exc.errors)
-            row = SyncOperation.objects.create(op_id=op_id, job=job, user=member.user, device_id=device_id[:64],
-                                               kind=str(kind)[:30], result=answer)
+            row = SyncOperation.objects.create(
+                op_id=op_id,
+                job=job,
+                user=member.user,
+                device_id=device_id[:64],
+                kind=str(kind)[:30],
+                result=answer,
+            )
             if "conflict" in holder:
                 Conflict.objects.filter(pk=holder["conflict"].pk).update(operation=row)
     except IntegrityError:

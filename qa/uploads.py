@@ -50,8 +50,13 @@ def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, 
     if photo is not None:
         if photo.job_id != job.id:
             raise Reject({"id": ["is already used"]})
-        return {"id": str(photo.id), "offset": photo.bytes, "total_bytes": photo.bytes, "done": True,
-                "sha256": photo.sha256}, False
+        return {
+            "id": str(photo.id),
+            "offset": photo.bytes,
+            "total_bytes": photo.bytes,
+            "done": True,
+            "sha256": photo.sha256,
+        }, False
     existing = PhotoUpload.objects.filter(pk=photo_id).first()
     if existing is not None:
         if existing.job_id != job.id or existing.user_id != member.user_id:
@@ -69,14 +74,16 @@ def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, 
         raise Reject({"purpose": [f"must be one of {', '.join(PhotoPurpose.values)}"]})
     finding = None
     if data.get("finding"):
-        finding = Finding.objects.filter(client_id=_uuid(data["finding"], "finding"), job=job,
-                                         removed=False).first()
+        finding = Finding.objects.filter(
+            client_id=_uuid(data["finding"], "finding"), job=job, removed=False
+        ).first()
         if finding is None:
             raise Reject({"finding": ["no such finding in this job (sync the finding first)"]})
         wall = finding.wall
     else:
-        wall = Wall.objects.filter(pk=data.get("wall") if str(data.get("wall", "")).isdigit() else None,
-                                   job=job, removed=False).first()
+        wall = Wall.objects.filter(
+            pk=data.get("wall") if str(data.get("wall", "")).isdigit() else None, job=job, removed=False
+        ).first()
         if wall is None:
             raise Reject({"wall": ["give the wall or the finding the photo shows"]})
     try:
@@ -95,8 +102,17 @@ def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, 
     if not isinstance(caption, str) or len(caption) > 200:
         raise Reject({"caption": ["must be text of at most 200 characters"]})
     upload = PhotoUpload.objects.create(
-        id=photo_id, job=job, wall=wall, finding=finding, purpose=purpose, captured_at=when, caption=caption,
-        total_bytes=total, sha256=digest, user=member.user, device_id=str(device_id)[:64],
+        id=photo_id,
+        job=job,
+        wall=wall,
+        finding=finding,
+        purpose=purpose,
+        captured_at=when,
+        caption=caption,
+        total_bytes=total,
+        sha256=digest,
+        user=member.user,
+        device_id=str(device_id)[:64],
     )
     return state(upload), True
 
@@ -112,8 +128,13 @@ def _upload(member: Member, photo_id, *, lock: bool = False) -> PhotoUpload:
 def upload_state(member: Member, photo_id) -> dict:
     photo = Photo.objects.filter(pk=_uuid(photo_id, "id"), job=member.job).first()
     if photo is not None:
-        return {"id": str(photo.id), "offset": photo.bytes, "total_bytes": photo.bytes, "done": True,
-                "sha256": photo.sha256}
+        return {
+            "id": str(photo.id),
+            "offset": photo.bytes,
+            "total_bytes": photo.bytes,
+            "done": True,
+            "sha256": photo.sha256,
+        }
     return state(_upload(member, photo_id))
 
 
@@ -130,7 +151,11 @@ def append_chunk(member: Member, photo_id, offset: int, chunk: bytes) -> dict:
     """Append ``chunk`` at ``offset``; a repeated chunk already received is accepted and ignored."""
     upload = _upload(member, photo_id, lock=True)
     have = bytes(upload.received)
-    if offset < len(have) and offset + len(chunk) <= len(have) and have[offset:offset + len(chunk)] == chunk:
+    if (
+        offset < len(have)
+        and offset + len(chunk) <= len(have)
+        and have[offset : offset + len(chunk)] == chunk
+    ):
         return state(upload)  # a retry of a chunk whose answer was lost
     if offset != len(have):
         raise OffsetMismatch(len(have))
@@ -167,18 +192,37 @@ def finish_upload(member: Member, photo_id) -> tuple[Photo, bool]:
             raise Reject({"offset": ["the upload changed while finishing; ask for the offset and go on"]})
         clean = clean_photo(data)
         photo = Photo(
-            id=upload.id, job=upload.job, wall=upload.wall, finding=upload.finding, purpose=upload.purpose,
-            caption=upload.caption, captured_at=upload.captured_at or clean.captured_at,
-            bytes=len(clean.image), width=clean.width, height=clean.height, sha256=clean.sha256,
-            received_sha256=clean.received_sha256, original_format=clean.original_format,
+            id=upload.id,
+            job=upload.job,
+            wall=upload.wall,
+            finding=upload.finding,
+            purpose=upload.purpose,
+            caption=upload.caption,
+            captured_at=upload.captured_at or clean.captured_at,
+            bytes=len(clean.image),
+            width=clean.width,
+            height=clean.height,
+            sha256=clean.sha256,
+            received_sha256=clean.received_sha256,
+            original_format=clean.original_format,
             uploaded_by=member.user,
         )
         photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
         photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
         photo.save()
-        Event.record(upload.job, member.user, "photo.added", photo,
-                     {"finding": upload.finding_id, "purpose": upload.purpose, "sha256": photo.sha256,
-                      "resumable": True}, device_id=upload.device_id)
+        Event.record(
+            upload.job,
+            member.user,
+            "photo.added",
+            photo,
+            {
+                "finding": upload.finding_id,
+                "purpose": upload.purpose,
+                "sha256": photo.sha256,
+                "resumable": True,
+            },
+            device_id=upload.device_id,
+        )
         upload.delete()
     return photo, True
 
@@ -187,10 +231,19 @@ def photo_data(photo: Photo) -> dict:
     from django.urls import reverse
 
     return {
-        "id": str(photo.id), "done": True, "offset": photo.bytes, "total_bytes": photo.bytes,
-        "wall": photo.wall_id, "finding": photo.finding_id, "purpose": photo.purpose, "bytes": photo.bytes,
-        "sha256": photo.sha256, "received_sha256": photo.received_sha256, "width": photo.width,
+        "id": str(photo.id),
+        "done": True,
+        "offset": photo.bytes,
+        "total_bytes": photo.bytes,
+        "wall": photo.wall_id,
+        "finding": photo.finding_id,
+        "purpose": photo.purpose,
+        "bytes": photo.bytes,
+        "sha256": photo.sha256,
+        "received_sha256": photo.received_sha256,
+        "width": photo.width,
         "height": photo.height,
-        "thumbnail_url": reverse("qa:photo-file", kwargs={"job_pk": photo.job_id, "photo_id": photo.id,
-                                                           "kind": "thumb"}),
+        "thumbnail_url": reverse(
+            "qa:photo-file", kwargs={"job_pk": photo.job_id, "photo_id": photo.id, "kind": "thumb"}
+        ),
     }

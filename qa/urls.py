@@ -6,6 +6,7 @@ from django.contrib import admin
 from django.contrib.auth import views as auth_views
 from django.urls import include, path
 
+from . import converters  # noqa: F401  (registers <id:...>)
 from .api import photo_views
 from .views import pages
 
@@ -13,10 +14,10 @@ qa_patterns = [
     path("", pages.job_list, name="job-list"),
     path("login/", pages.LoginView.as_view(), name="login"),
     path("logout/", auth_views.LogoutView.as_view(), name="logout"),
-    path("jobs/<int:job_pk>/", pages.job_page, name="job"),
-    path("jobs/<int:job_pk>/walls/<int:wall_pk>/", pages.wall_page, name="wall"),
+    path("jobs/<id:job_pk>/", pages.job_page, name="job"),
+    path("jobs/<id:job_pk>/walls/<id:wall_pk>/", pages.wall_page, name="wall"),
     path(
-        "jobs/<int:job_pk>/photos/<uuid:photo_id>/<str:kind>",
+        "jobs/<id:job_pk>/photos/<uuid:photo_id>/<str:kind>",
         photo_views.photo_file,
         name="photo-file",
     ),

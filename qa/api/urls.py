@@ -5,6 +5,7 @@ from __future__ import annotations
 from django.urls import include, path
 from rest_framework.routers import SimpleRouter
 
+from .. import converters  # noqa: F401  (registers <id:...>)
 from . import auth, docs, photo_views, views
 
 jobs = SimpleRouter()
@@ -24,8 +25,8 @@ in_wall.register("seal-points", views.SealPointViewSet, basename="sealpoint")
 
 urlpatterns = [
     path("", include(jobs.urls)),
-    path("jobs/<int:job_pk>/", include(in_job.urls)),
-    path("jobs/<int:job_pk>/walls/<int:wall_pk>/", include(in_wall.urls)),
+    path("jobs/<id:job_pk>/", include(in_job.urls)),
+    path("jobs/<id:job_pk>/walls/<id:wall_pk>/", include(in_wall.urls)),
     path("auth/token/", auth.ObtainToken.as_view(), name="token"),
     path("auth/token/revoke/", auth.RevokeToken.as_view(), name="token-revoke"),
     path("schema/", docs.schema_view, name="schema"),

@@ -10,6 +10,7 @@ from rest_framework.exceptions import NotFound, ValidationError
 from rest_framework.response import Response
 
 from ..access import membership, require
+from ..converters import ID_REGEX
 from ..choices import FindingStatus, SealStatus
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import TransitionError
@@ -20,6 +21,8 @@ READ_ACTIONS = {"list", "retrieve", "metadata"}
 
 class JobScopedMixin:
     """Resolve ``job_pk`` for every request: a non-member gets 404, a member without the right 403."""
+
+    lookup_value_regex = ID_REGEX
 
     #: The right needed for writes (reads need "view").
     write_right = "edit"
@@ -48,6 +51,7 @@ class JobViewSet(viewsets.ReadOnlyModelViewSet):
 
     serializer_class = s.JobSerializer
     lookup_url_kwarg = "job_pk"
+    lookup_value_regex = ID_REGEX
 
     def get_queryset(self):
         return Job.objects.for_user(self.request.user)

@@ -10,6 +10,8 @@ from django.contrib.auth.decorators import login_required
 from django.db import transaction
 from django.shortcuts import render
 from django.views.decorators.csrf import ensure_csrf_cookie
+from drf_spectacular.types import OpenApiTypes
+from drf_spectacular.utils import extend_schema
 from rest_framework import status
 from rest_framework.exceptions import ValidationError
 from rest_framework.parsers import BaseParser, JSONParser
@@ -54,6 +56,7 @@ class WalkView(APIView):
         return str(self.request.headers.get("X-Device-Id", ""))[:64]
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class BundleView(WalkView):
     """GET the job bundle. Answers 304 when ``If-None-Match`` names the current version."""
 
@@ -65,6 +68,7 @@ class BundleView(WalkView):
         return Response(body, headers={"ETag": etag, "Cache-Control": "private, no-cache"})
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class SyncView(WalkView):
     """POST ``{"device_id": str, "ops": [...]}``: apply each operation exactly once, answer each."""
 
@@ -81,6 +85,7 @@ class SyncView(WalkView):
         return Response({"results": results, "counts": counts})
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class ConflictListView(WalkView):
     def get(self, request, job_pk: int):
         require(self.member, "edit")
@@ -90,6 +95,7 @@ class ConflictListView(WalkView):
         return Response([conflict_data(c, self.job) for c in conflicts])
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class ConflictResolveView(WalkView):
     """POST ``{"keep": "server" | "device"}``: the inspector settles a conflict."""
 
@@ -98,8 +104,9 @@ class ConflictResolveView(WalkView):
     def post(self, request, job_pk: int, conflict_pk: int):
         try:
             with transaction.atomic():
-                answer = resolve_conflict(self.job, self.member, conflict_pk, request.data.get("keep"),
-                                          device_id=self.device_id())
+                answer = resolve_conflict(
+                    self.job, self.member, conflict_pk, request.data.get("keep"), device_id=self.device_id()
+                )
         except Reject as exc:
             return _bad(exc, status.HTTP_409_CONFLICT if "conflict" in exc.errors else 400)
         return Response(answer)
@@ -115,6 +122,7 @@ class RawBytesParser(BaseParser):
         return data
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class UploadOpenView(WalkView):
     """POST ``{id, finding | wall, purpose, total_bytes, sha256, captured_at}`` → the upload's offset."""
 
@@ -129,6 +137,7 @@ class UploadOpenView(WalkView):
         return Response(answer, status=status.HTTP_201_CREATED if created else status.HTTP_200_OK)
 
 
+@extend_schema(request=OpenApiTypes.BINARY, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class UploadChunkView(WalkView):
     """GET the offset; PUT raw bytes with ``?offset=N`` (409 with the right offset when it is wrong)."""
 
@@ -156,6 +165,7 @@ class UploadChunkView(WalkView):
             return _bad(exc, status.HTTP_404_NOT_FOUND if "id" in exc.errors else 400)
 
 
+@extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
 class UploadFinishView(WalkView):
     right = "fix"
 

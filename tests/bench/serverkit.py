@@ -137,8 +137,9 @@ def _pg_admin(url: str):
 
 
 @contextlib.contextmanager
-def prepared_server(*, workers: int = 3, walls: int = 5, people: list | None = None,
-                    threads: int = 1) -> Iterator[Server]:
+def prepared_server(
+    *, workers: int = 3, walls: int = 5, people: list | None = None, threads: int = 1
+) -> Iterator[Server]:
     people = people or [("insp", "inspector", ""), ("elec", "crew", "electrical"), ("own", "owner", "")]
     base_url = os.environ.get("DATABASE_URL", "")
     tmp = Path(tempfile.mkdtemp(prefix="sealwalk-srv-"))
@@ -152,29 +153,71 @@ def prepared_server(*, workers: int = 3, walls: int = 5, people: list | None = N
         db_url = parts._replace(path="/" + db_name).geturl()
     else:
         db_url = f"sqlite:///{tmp / 'db.sqlite3'}"
-    env = {**os.environ, "DATABASE_URL": db_url, "SEALWALK_DATA_DIR": str(tmp), "SEALWALK_DEBUG": "1",
-           "DJANGO_SETTINGS_MODULE": "qa.settings", "PYTHONPATH": str(ROOT)}
+    env = {
+        **os.environ,
+        "DATABASE_URL": db_url,
+        "SEALWALK_DATA_DIR": str(tmp),
+        "SEALWALK_DEBUG": "1",
+        "DJANGO_SETTINGS_MODULE": "qa.settings",
+        "PYTHONPATH": str(ROOT),
+    }
     env.pop("DJANGO_ALLOW_ASYNC_UNSAFE", None)
     py = sys.executable
     master = None
     log = tmp / "gunicorn.log"
     try:
         for cmd in (["migrate", "-v0"], ["createcachetable"]):
-            subprocess.run([py, "manage.py", *cmd], cwd=ROOT, env=env, check=True, capture_output=True, timeout=300)
+            subprocess.run(
+                [py, "manage.py", *cmd], cwd=ROOT, env=env, check=True, capture_output=True, timeout=300
+            )
         spec = json.dumps({"walls": walls, "people": people, "password": PASSWORD})
-        out = subprocess.run([py, "manage.py", "shell", "-c", LOADER.replace("sys.argv[1]", repr(spec))], cwd=ROOT,
-                             env=env, check=True, capture_output=True, text=True, timeout=300)
+        out = subprocess.run(
+            [py, "manage.py", "shell", "-c", LOADER.replace("sys.argv[1]", repr(spec))],
+            cwd=ROOT,
+            env=env,
+            check=True,
+            capture_output=True,
+            text=True,
+            timeout=300,
+        )
         loaded = json.loads(out.stdout.strip().splitlines()[-1])
         port = free_port()
         gunicorn = str(Path(py).with_name("gunicorn"))
         logf = open(log, "w")  # noqa: SIM115 - closed with the server
         master = subprocess.Popen(
-            [gunicorn, "qa.wsgi", "-w", str(workers), "--threads", str(threads), "-b", f"127.0.0.1:{port}",
-             "--timeout", "60", "--graceful-timeout", "2", "--log-level", "warning"],
-            cwd=ROOT, env=env, stdout=logf, stderr=subprocess.STDOUT,
+            [
+                gunicorn,
+                "qa.wsgi",
+                "-w",
+                str(workers),
+                "--threads",
+                str(threads),
+                "-b",
+                f"127.0.0.1:{port}",
+                "--timeout",
+                "60",
+                "--graceful-timeout",
+                "2",
+                "--log-level",
+                "warning",
+            ],
+            cwd=ROOT,
+            env=env,
+            stdout=logf,
+            stderr=subprocess.STDOUT,
         )
-        server = Server(f"http://127.0.0.1:{port}", loaded["job"], loaded["walls"], loaded["tokens"], env, master,
-                        vendor, db_name, log, {"db_url": db_url, "tmp": tmp})
+        server = Server(
+            f"http://127.0.0.1:{port}",
+            loaded["job"],
+            loaded["walls"],
+            loaded["tokens"],
+            env,
+            master,
+            vendor,
+            db_name,
+            log,
+            {"db_url": db_url, "tmp": tmp},
+        )
         server.wait_ready()
         yield server
     finally:

@@ -8,8 +8,6 @@ Offline is guarded as the browser notes advise: the reload must come from the se
 from __future__ import annotations
 
 import hashlib
-import io
-import re
 
 import pytest
 
@@ -35,9 +33,16 @@ def add_walls(world, n=2):
 
     walls = [world.wall]
     for i in range(n):
-        wall = Wall.objects.create(job=world.job, wall_type=world.wall_type, tag=f"3-0{i + 1}", level="3",
-                                   location=f"between 30{i + 1} and 30{i + 2}", length_m=5.0, height_m=2.7,
-                                   target_rating=50)
+        wall = Wall.objects.create(
+            job=world.job,
+            wall_type=world.wall_type,
+            tag=f"3-0{i + 1}",
+            level="3",
+            location=f"between 30{i + 1} and 30{i + 2}",
+            length_m=5.0,
+            height_m=2.7,
+            target_rating=50,
+        )
         wall.add_template_seal_points()
         walls.append(wall)
     return walls
@@ -87,8 +92,10 @@ def waiting(page) -> tuple[int, int]:
 
 def device_photo_hashes(page) -> list[str]:
     return page.evaluate("""async () => {
-      const db = await new Promise((ok, no) => { const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
-      const rows = await new Promise((ok) => { const q = db.transaction('photos').objectStore('photos').getAll(); q.onsuccess = () => ok(q.result); });
+      const db = await new Promise((ok, no) => {
+        const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
+      const rows = await new Promise((ok) => {
+        const q = db.transaction('photos').objectStore('photos').getAll(); q.onsuccess = () => ok(q.result); });
       return rows.map((r) => r.sha256);
     }""")
 
@@ -103,8 +110,9 @@ def test_walk_offline_reload_new_context_then_sync_once(live_server, browser, wo
     photo_b = jpeg_file(tmp_path / "b.jpg", (40, 90, 200), size=(3000, 2000))  # downscaled on the phone
 
     pw = browser.browser_type
-    ctx = pw.launch_persistent_context(str(profile), executable_path=CHROMIUM, args=CHROMIUM_ARGS, headless=True,
-                                       **PHONE)
+    ctx = pw.launch_persistent_context(
+        str(profile), executable_path=CHROMIUM, args=CHROMIUM_ARGS, headless=True, **PHONE
+    )
     ctx.set_default_timeout(15000)
     page = ctx.pages[0] if ctx.pages else ctx.new_page()
     login(page, base, "insp")
@@ -142,8 +150,9 @@ def test_walk_offline_reload_new_context_then_sync_once(live_server, browser, wo
     ctx.close()
 
     # A new context on the same profile (the tab and the browser were closed): still there.
-    ctx = pw.launch_persistent_context(str(profile), executable_path=CHROMIUM, args=CHROMIUM_ARGS, headless=True,
-                                       offline=True, **PHONE)
+    ctx = pw.launch_persistent_context(
+        str(profile), executable_path=CHROMIUM, args=CHROMIUM_ARGS, headless=True, offline=True, **PHONE
+    )
     ctx.set_default_timeout(15000)
     page = ctx.pages[0] if ctx.pages else ctx.new_page()
     resp = page.goto(base + f"/walk/#/j/{world.job.id}")
@@ -156,7 +165,9 @@ def test_walk_offline_reload_new_context_then_sync_once(live_server, browser, wo
     page.evaluate("() => window.dispatchEvent(new Event('online'))")
     page.wait_for_function(
         "() => document.querySelector('[data-changes-waiting]')?.dataset.changesWaiting === '0'"
-        " && document.querySelector('[data-photos-waiting]')?.dataset.photosWaiting === '0'", timeout=30000)
+        " && document.querySelector('[data-photos-waiting]')?.dataset.photosWaiting === '0'",
+        timeout=30000,
+    )
     assert Finding.objects.count() == 5
     assert Photo.objects.count() == 2
     assert sorted(Photo.objects.values_list("sha256", flat=True)) == hashes

@@ -9,19 +9,22 @@ import re
 import pytest
 
 from tests.conftest import PHONE, login
-from tests.e2e.test_walk_offline import go_offline, jpeg_file, open_walk, open_wall, record_finding, waiting
+from tests.e2e.test_walk_offline import go_offline, jpeg_file, open_walk, open_wall, record_finding
 
 pytestmark = [pytest.mark.e2e, pytest.mark.django_db(transaction=True)]
 
-ALL_SENT = ("() => document.querySelector('[data-changes-waiting]')?.dataset.changesWaiting === '0'"
-            " && document.querySelector('[data-photos-waiting]')?.dataset.photosWaiting === '0'"
-            " && !document.querySelector('[data-sync-now]')?.disabled")
+ALL_SENT = (
+    "() => document.querySelector('[data-changes-waiting]')?.dataset.changesWaiting === '0'"
+    " && document.querySelector('[data-photos-waiting]')?.dataset.photosWaiting === '0'"
+    " && !document.querySelector('[data-sync-now]')?.disabled"
+)
 
 OUTBOX = """async () => {
-  const db = await new Promise((ok, no) => { const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
-  return await new Promise((ok) => { const q = db.transaction('outbox').objectStore('outbox').getAll(); q.onsuccess = () => ok(q.result); });
+  const db = await new Promise((ok, no) => {
+    const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
+  return await new Promise((ok) => {
+    const q = db.transaction('outbox').objectStore('outbox').getAll(); q.onsuccess = () => ok(q.result); });
 }"""
-
 
 
 ASK_VERSION = """() => new Promise((ok) => {
@@ -44,7 +47,10 @@ def synced_since(page, since: str, timeout=20000) -> None:
         " return el && el.dataset.lastSync > since"
         " && document.querySelector('[data-changes-waiting]').dataset.changesWaiting === '0'"
         " && document.querySelector('[data-photos-waiting]').dataset.photosWaiting === '0'"
-        " && !document.querySelector('[data-sync-now]').disabled; }", arg=since, timeout=timeout)
+        " && !document.querySelector('[data-sync-now]').disabled; }",
+        arg=since,
+        timeout=timeout,
+    )
 
 
 def close(ctx):
@@ -74,13 +80,17 @@ def test_replayed_outbox_makes_no_twins(live_server, phone, world, api):
     open_wall(page, world.wall.tag)
     record_finding(page, 0, "6")
     record_finding(page, 1, "4")
-    ops = [{k: op[k] for k in ("op_id", "kind", "base_version", "payload", "device_at")}
-           for op in page.evaluate(OUTBOX)]
+    ops = [
+        {k: op[k] for k in ("op_id", "kind", "base_version", "payload", "device_at")}
+        for op in page.evaluate(OUTBOX)
+    ]
     assert len(ops) == 2
     # The outbox reaches the server twice while the phone never hears back (a lost answer) ...
     client = api(world.inspector)
     first = client.post(f"/api/jobs/{world.job.id}/sync/", {"device_id": "replay", "ops": ops}, format="json")
-    second = client.post(f"/api/jobs/{world.job.id}/sync/", {"device_id": "replay", "ops": ops}, format="json")
+    second = client.post(
+        f"/api/jobs/{world.job.id}/sync/", {"device_id": "replay", "ops": ops}, format="json"
+    )
     assert first.status_code == second.status_code == 200
     assert first.data["results"] == second.data["results"]
     assert [r["status"] for r in first.data["results"]] == ["applied", "applied"]
@@ -94,13 +104,26 @@ def test_replayed_outbox_makes_no_twins(live_server, phone, world, api):
     close(phone)
 
 
-def test_two_devices_edit_same_finding_conflict_kept_and_resolved(live_server, browser, world, api, artifacts):
+def test_two_devices_edit_same_finding_conflict_kept_and_resolved(
+    live_server, browser, world, api, artifacts
+):
     from qa.models import Conflict, Finding
 
     client = api(world.inspector)
     point = world.wall.seal_points.first()
-    client.post(f"/api/jobs/{world.job.id}/findings/", {"wall": world.wall.id, "seal_point": point.id,
-                "kind": "slit", "face": "a", "width": 6, "length": 1500, "trade": "drywall"}, format="json")
+    client.post(
+        f"/api/jobs/{world.job.id}/findings/",
+        {
+            "wall": world.wall.id,
+            "seal_point": point.id,
+            "kind": "slit",
+            "face": "a",
+            "width": 6,
+            "length": 1500,
+            "trade": "drywall",
+        },
+        format="json",
+    )
     finding = Finding.objects.get()
     pages = []
     for _ in range(2):
@@ -117,7 +140,7 @@ def test_two_devices_edit_same_finding_conflict_kept_and_resolved(live_server, b
         page.fill("#f-note", note)
         page.click("[data-save]")
         page.wait_for_selector("[data-finding-status]")
-    for ctx, page in pages:
+    for ctx, page in pages:  # noqa: B007
         ctx.set_offline(False)
         page.click("[data-sync-now]")
         page.wait_for_function(ALL_SENT)
@@ -201,14 +224,26 @@ def test_new_service_worker_waits_for_the_user(live_server, phone, world):
     close(phone)
 
 
-def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(live_server, browser, world, api, tmp_path, artifacts):
+def test_crew_sees_own_trade_marks_fixed_inspector_sees_fix(
+    live_server, browser, world, api, tmp_path, artifacts
+):
     from qa.models import Finding, Photo
 
     client = api(world.inspector)
     points = list(world.wall.seal_points.all())
     for trade, point in (("electrical", points[0]), ("drywall", points[1])):
-        client.post(f"/api/jobs/{world.job.id}/findings/", {"wall": world.wall.id, "seal_point": point.id,
-                    "kind": "hole", "diameter": 20, "trade": trade, "note": f"{trade} item"}, format="json")
+        client.post(
+            f"/api/jobs/{world.job.id}/findings/",
+            {
+                "wall": world.wall.id,
+                "seal_point": point.id,
+                "kind": "hole",
+                "diameter": 20,
+                "trade": trade,
+                "note": f"{trade} item",
+            },
+            format="json",
+        )
     elec = Finding.objects.get(trade="electrical")
     ctx = new_phone(browser)
     page = ctx.new_page()

@@ -88,15 +88,26 @@ def build_scene(world) -> Scene:
 
     w = world
     finding = Finding.objects.create(
-        job=w.job, wall=w.wall, kind="slit", width_m=0.003, length_m=0.5, trade="electrical",
+        job=w.job,
+        wall=w.wall,
+        kind="slit",
+        width_m=0.003,
+        length_m=0.5,
+        trade="electrical",
         created_by=w.inspector,
     )
     photo = make_photo(w.job, w.wall, finding, w.inspector)
-    opening = Opening.objects.create(wall=w.wall, kind="door", label="D1", width_m=0.9, height_m=2.1, rating=30)
+    opening = Opening.objects.create(
+        wall=w.wall, kind="door", label="D1", width_m=0.9, height_m=2.1, rating=30
+    )
     point = SealPoint.objects.filter(wall=w.wall).order_by("position").first()
     member = Member.objects.get(job=w.job, user=w.electrician)
     other_finding = Finding.objects.create(
-        job=w.other_job, wall=w.other_wall, kind="hole", diameter_m=0.01, trade="electrical",
+        job=w.other_job,
+        wall=w.other_wall,
+        kind="hole",
+        diameter_m=0.01,
+        trade="electrical",
         created_by=w.outsider,
     )
     foreign = {
@@ -104,16 +115,25 @@ def build_scene(world) -> Scene:
         "walltype": w.other_wall.wall_type,
         "finding": other_finding,
         "photo": make_photo(w.other_job, w.other_wall, other_finding, w.outsider),
-        "opening": Opening.objects.create(wall=w.other_wall, kind="door", width_m=0.9, height_m=2.1, rating=30),
+        "opening": Opening.objects.create(
+            wall=w.other_wall, kind="door", width_m=0.9, height_m=2.1, rating=30
+        ),
         "sealpoint": SealPoint.objects.filter(wall=w.other_wall).first(),
         "member": Member.objects.get(job=w.other_job, user=w.outsider),
     }
     from qa.models import Conflict, SyncOperation
 
-    op = SyncOperation.objects.create(op_id=uuid.uuid4(), job=w.job, user=w.inspector, kind="finding.update",
-                                      result={"status": "conflict"})
-    conflict = Conflict.objects.create(finding=finding, operation=op, base_version=1, server_version={"note": ""},
-                                       device_version={"note": "from the phone"}, created_by=w.inspector)
+    op = SyncOperation.objects.create(
+        op_id=uuid.uuid4(), job=w.job, user=w.inspector, kind="finding.update", result={"status": "conflict"}
+    )
+    conflict = Conflict.objects.create(
+        finding=finding,
+        operation=op,
+        base_version=1,
+        server_version={"note": ""},
+        device_version={"note": "from the phone"},
+        created_by=w.inspector,
+    )
     return Scene(w, finding, photo, opening, point, member, conflict=conflict, foreign=foreign)
 
 
@@ -147,39 +167,80 @@ OBJECTS = {
 
 
 def wall_body(s):
-    return {"tag": "3-07", "level": "3", "location": "between 307 and 308", "length": 5.0, "height": 2.7,
-            "wall_type": s.world.wall_type.pk, "target_rating": 50, "rating_scheme": "stc",
-            "face_a_label": "Unit 307", "face_b_label": "Unit 308"}
+    return {
+        "tag": "3-07",
+        "level": "3",
+        "location": "between 307 and 308",
+        "length": 5.0,
+        "height": 2.7,
+        "wall_type": s.world.wall_type.pk,
+        "target_rating": 50,
+        "rating_scheme": "stc",
+        "face_a_label": "Unit 307",
+        "face_b_label": "Unit 308",
+    }
 
 
 def walltype_body(s):
-    return {"code": "T9", "name": "Double stud", "construction": "double_stud", "tl": FLAT_50, "tl_source": "lab",
-            "thickness": 250, "rating_scheme": "stc", "fire_rated": True}
+    return {
+        "code": "T9",
+        "name": "Double stud",
+        "construction": "double_stud",
+        "tl": FLAT_50,
+        "tl_source": "lab",
+        "thickness": 250,
+        "rating_scheme": "stc",
+        "fire_rated": True,
+    }
 
 
 def finding_body(s):
-    return {"client_id": str(uuid.uuid4()), "wall": s.world.wall.pk, "kind": "slit", "face": "through",
-            "width": 3, "length": 400, "trade": "electrical", "note": "gap at box"}
+    return {
+        "client_id": str(uuid.uuid4()),
+        "wall": s.world.wall.pk,
+        "kind": "slit",
+        "face": "through",
+        "width": 3,
+        "length": 400,
+        "trade": "electrical",
+        "note": "gap at box",
+    }
 
 
 def photo_body(s):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
-    return {"id": str(uuid.uuid4()), "finding": s.finding.pk, "purpose": "fix",
-            "image": SimpleUploadedFile("fix.jpg", jpeg_bytes(), content_type="image/jpeg")}
+    return {
+        "id": str(uuid.uuid4()),
+        "finding": s.finding.pk,
+        "purpose": "fix",
+        "image": SimpleUploadedFile("fix.jpg", jpeg_bytes(), content_type="image/jpeg"),
+    }
 
 
 def upload_body(s):
-    return {"id": str(uuid.uuid4()), "finding": str(s.finding.client_id), "purpose": "fix", "total_bytes": 1000,
-            "sha256": "ab" * 32}
+    return {
+        "id": str(uuid.uuid4()),
+        "finding": str(s.finding.client_id),
+        "purpose": "fix",
+        "total_bytes": 1000,
+        "sha256": "ab" * 32,
+    }
 
 
 def open_upload_as_inspector(s):
     """An upload in progress for the scene's photo id slot (KWARGS photo_id then points at it)."""
     from qa.models import PhotoUpload
 
-    s.photo = PhotoUpload.objects.create(id=uuid.uuid4(), job=s.world.job, wall=s.world.wall, finding=s.finding,
-                                         total_bytes=1000, sha256="ab" * 32, user=s.world.inspector)
+    s.photo = PhotoUpload.objects.create(
+        id=uuid.uuid4(),
+        job=s.world.job,
+        wall=s.world.wall,
+        finding=s.finding,
+        total_bytes=1000,
+        sha256="ab" * 32,
+        user=s.world.inspector,
+    )
 
 
 def finished_upload(s):
@@ -212,18 +273,20 @@ class Rule:
     before: Any = None
     anonymous: int | None = None
     with_user: bool = False
-    on_finding: bool = True
+    on_finding: bool = True  # False: a "fix" right not tied to one finding's trade (crew of any trade)
     path_suffix: str = ""
     only_opener: bool = False  # the object belongs to the inspector who made it: other members get 404
-    known: Any = None  # {persona: reason}: a known deviation from the design, reported with its fix (xfail)  # False: a "fix" right not tied to one finding's trade (crew of any trade may)
+    known: Any = None  # {persona: reason}: a known deviation from the design, reported with its fix (xfail)
 
 
 R = Rule
 TABLE: dict[str, dict[str, Rule]] = {
     # pages
     "qa:job-list": {"GET": R("auth")},
-    "qa:login": {"GET": R("public", ok={"anonymous": 200, "*": 302}),
-                 "POST": R("public", ok=302, body=credentials, fmt="form", with_user=True)},
+    "qa:login": {
+        "GET": R("public", ok={"anonymous": 200, "*": 302}),
+        "POST": R("public", ok=302, body=credentials, fmt="form", with_user=True),
+    },
     "qa:logout": {"POST": R("public", ok=302, fmt="form")},
     "qa:job": {"GET": R("view")},
     "qa:wall": {"GET": R("view")},
@@ -231,42 +294,64 @@ TABLE: dict[str, dict[str, Rule]] = {
     # API: jobs
     "api:job-list": {"GET": R("auth")},
     "api:job-detail": {"GET": R("view")},
-    "api:member-list": {"GET": R("view"),
-                        "POST": R("manage_members", ok=201, body=lambda s: {"username": "out", "role": "owner"})},
-    "api:member-detail": {"GET": R("view"),
-                          "PUT": R("manage_members", body=lambda s: {"username": "elec", "role": "crew",
-                                                                     "trade": "plumbing", "active": True}),
-                          "PATCH": R("manage_members", body=lambda s: {"active": False})},
+    "api:member-list": {
+        "GET": R("view"),
+        "POST": R("manage_members", ok=201, body=lambda s: {"username": "out", "role": "owner"}),
+    },
+    "api:member-detail": {
+        "GET": R("view"),
+        "PUT": R(
+            "manage_members",
+            body=lambda s: {"username": "elec", "role": "crew", "trade": "plumbing", "active": True},
+        ),
+        "PATCH": R("manage_members", body=lambda s: {"active": False}),
+    },
     "api:walltype-list": {"GET": R("view"), "POST": R("edit", ok=201, body=walltype_body)},
-    "api:walltype-detail": {"GET": R("view"),
-                            "PUT": R("edit", body=lambda s: walltype_body(s) | {"code": "T1"}),
-                            "PATCH": R("edit", body=lambda s: {"name": "Renamed"})},
+    "api:walltype-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: walltype_body(s) | {"code": "T1"}),
+        "PATCH": R("edit", body=lambda s: {"name": "Renamed"}),
+    },
     "api:wall-list": {"GET": R("view"), "POST": R("edit", ok=201, body=wall_body)},
-    "api:wall-detail": {"GET": R("view"),
-                        "PUT": R("edit", body=lambda s: wall_body(s) | {"tag": "2-01"}),
-                        "PATCH": R("edit", body=lambda s: {"location": "between 201 and 203"}),
-                        "DELETE": R("edit", ok=204)},
-    "api:opening-list": {"GET": R("view"),
-                         "POST": R("edit", ok=201, body=lambda s: {"kind": "window", "width": 1.0, "height": 1.2,
-                                                                   "rating": 32})},
-    "api:opening-detail": {"GET": R("view"),
-                           "PUT": R("edit", body=lambda s: {"kind": "door", "label": "D1", "width": 0.9,
-                                                            "height": 2.1, "rating": 35}),
-                           "PATCH": R("edit", body=lambda s: {"rating": 33}),
-                           "DELETE": R("edit", ok=204)},
-    "api:sealpoint-list": {"GET": R("view"),
-                           "POST": R("edit", ok=201, body=lambda s: {"label": "Extra pipe", "trade": "plumbing",
-                                                                     "gap_kind": "ring"})},
-    "api:sealpoint-detail": {"GET": R("view"),
-                             "PUT": R("edit", body=lambda s: {"label": "Bottom track", "trade": "drywall",
-                                                              "status": "pass"}),
-                             "PATCH": R("edit", body=lambda s: {"status": "pass"}),
-                             "DELETE": R("edit", ok=204)},
+    "api:wall-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: wall_body(s) | {"tag": "2-01"}),
+        "PATCH": R("edit", body=lambda s: {"location": "between 201 and 203"}),
+        "DELETE": R("edit", ok=204),
+    },
+    "api:opening-list": {
+        "GET": R("view"),
+        "POST": R(
+            "edit", ok=201, body=lambda s: {"kind": "window", "width": 1.0, "height": 1.2, "rating": 32}
+        ),
+    },
+    "api:opening-detail": {
+        "GET": R("view"),
+        "PUT": R(
+            "edit", body=lambda s: {"kind": "door", "label": "D1", "width": 0.9, "height": 2.1, "rating": 35}
+        ),
+        "PATCH": R("edit", body=lambda s: {"rating": 33}),
+        "DELETE": R("edit", ok=204),
+    },
+    "api:sealpoint-list": {
+        "GET": R("view"),
+        "POST": R(
+            "edit", ok=201, body=lambda s: {"label": "Extra pipe", "trade": "plumbing", "gap_kind": "ring"}
+        ),
+    },
+    "api:sealpoint-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: {"label": "Bottom track", "trade": "drywall", "status": "pass"}),
+        "PATCH": R("edit", body=lambda s: {"status": "pass"}),
+        "DELETE": R("edit", ok=204),
+    },
     "api:finding-list": {"GET": R("view"), "POST": R("edit", ok=201, body=finding_body)},
-    "api:finding-detail": {"GET": R("view"),
-                           "PUT": R("edit", body=lambda s: finding_body(s) | {"client_id": str(s.finding.client_id)}),
-                           "PATCH": R("edit", body=lambda s: {"note": "wider than thought"}),
-                           "DELETE": R("edit", ok=204)},
+    "api:finding-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: finding_body(s) | {"client_id": str(s.finding.client_id)}),
+        "PATCH": R("edit", body=lambda s: {"note": "wider than thought"}),
+        "DELETE": R("edit", ok=204),
+    },
     "api:finding-fix": {"POST": R("fix", body=lambda s: {"note": "sealed"})},
     "api:finding-verify": {"POST": R("verify", body=lambda s: {"note": "seen"}, before=set_fixed)},
     "api:finding-reopen": {"POST": R("verify", body=lambda s: {"note": "still open"}, before=set_fixed)},
@@ -283,21 +368,40 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:walk-sync": {"POST": R("fix", on_finding=False, body=lambda s: {"device_id": "matrix", "ops": []})},
     "qa:walk-conflicts": {"GET": R("edit")},
     "qa:walk-conflict-resolve": {"POST": R("edit", body=lambda s: {"keep": "server"})},
-    "qa:walk-upload-open": {"POST": R("fix", ok=201, body=upload_body, known={
-        "crew_other_trade": "qa/uploads.py open_upload: another trade's finding answers 400 (Reject), the design "
-                            "says 403; fix: raise PermissionDenied (or answer 403) for the trade rule"})},
-    # An upload in progress belongs to whoever opened it (here the inspector); its id is nobody else's to probe.
-    "qa:walk-upload": {"GET": R("view", only_opener=True, before=open_upload_as_inspector),
-                       "PUT": R("fix", on_finding=False, only_opener=True, before=open_upload_as_inspector,
-                                body=lambda s: b"\xff\xd8", fmt="raw", path_suffix="?offset=0")},
-    # Finishing an upload whose photo is already stored answers the stored photo (a replay after a lost reply).
+    "qa:walk-upload-open": {
+        "POST": R(
+            "fix",
+            ok=201,
+            body=upload_body,
+            known={
+                "crew_other_trade": "qa/uploads.py open_upload: another trade's finding answers 400 (Reject), "
+                "the design "
+                "says 403; fix: raise PermissionDenied (or answer 403) for the trade rule"
+            },
+        )
+    },
+    # An upload in progress belongs to whoever opened it (here the inspector): nobody else's to probe.
+    "qa:walk-upload": {
+        "GET": R("view", only_opener=True, before=open_upload_as_inspector),
+        "PUT": R(
+            "fix",
+            on_finding=False,
+            only_opener=True,
+            before=open_upload_as_inspector,
+            body=lambda s: b"\xff\xd8",
+            fmt="raw",
+            path_suffix="?offset=0",
+        ),
+    },
+    # Finishing an upload whose photo is already stored answers the stored photo (replay, lost reply).
     "qa:walk-upload-finish": {"POST": R("fix", on_finding=False, before=finished_upload)},
     # leak audits, crew and check lists, the hand-over report (qa/views/audit_urls.py)
     "qa:crew": {"GET": R("fix", on_finding=False)},
     "qa:check": {"GET": R("verify")},
     "qa:finding-fixed": {"POST": R("fix", ok=302, fmt="form", body=lambda s: {"note": "sealed"})},
-    "qa:finding-check": {"POST": R("verify", ok=302, fmt="form", before=set_fixed,
-                                   body=lambda s: {"action": "verify"})},
+    "qa:finding-check": {
+        "POST": R("verify", ok=302, fmt="form", before=set_fixed, body=lambda s: {"action": "verify"})
+    },
     "qa:report": {"GET": R("view")},
     "qa:report-pdf": {"GET": R("view")},
     "qa:report-csv": {"GET": R("view")},
@@ -306,7 +410,7 @@ TABLE: dict[str, dict[str, Rule]] = {
 #: URL names deliberately outside the matrix, with the reason.
 EXEMPT = {
     "admin:*": "Django admin: staff only, guarded by Django's own admin login; no job data editable there "
-               "except by staff (Event has no change/delete, see test_hardening).",
+    "except by staff (Event has no change/delete, see test_hardening).",
 }
 
 # --- route discovery ------------------------------------------------------------------------------------
@@ -330,8 +434,13 @@ def _declared_methods(func) -> tuple[str, ...] | None:
                 value = cell.cell_contents
             except ValueError:
                 continue
-            if isinstance(value, list | tuple) and value and all(
-                isinstance(v, str) and v in {"GET", "POST", "PUT", "PATCH", "DELETE", "HEAD"} for v in value
+            if (
+                isinstance(value, list | tuple)
+                and value
+                and all(
+                    isinstance(v, str) and v in {"GET", "POST", "PUT", "PATCH", "DELETE", "HEAD"}
+                    for v in value
+                )
             ):
                 return tuple(sorted(set(value) - {"HEAD"}))
         func = getattr(func, "__wrapped__", None)
@@ -345,7 +454,9 @@ def _methods(callback) -> tuple[str, ...] | None:
     view_class = getattr(callback, "cls", None) or getattr(callback, "view_class", None)
     if view_class is not None:
         names = getattr(view_class, "http_method_names", [])
-        return tuple(sorted(m.upper() for m in names if m not in ("options", "head") and hasattr(view_class, m)))
+        return tuple(
+            sorted(m.upper() for m in names if m not in ("options", "head") and hasattr(view_class, m))
+        )
     return _declared_methods(callback)
 
 
@@ -380,7 +491,8 @@ def _prefix_kwargs(prefix: str) -> list[str]:
 
 def _exempt(route: Route) -> bool:
     return any(
-        route.name == key or (key.endswith(":*") and route.name.startswith(key[:-1]))
+        route.name == key
+        or (key.endswith(":*") and route.name.startswith(key[:-1]))
         or (key.endswith(":*") and route.pattern.startswith(key[:-2] + "/"))
         for key in EXEMPT
     )
@@ -404,14 +516,17 @@ def test_every_route_has_a_rights_entry():
             methods = route.methods or ("GET",)
             problems.append(
                 f"route {name!r} ({route.pattern}) has no entry in TABLE of tests/qa/test_access_matrix.py; "
-                f"add e.g. {name!r}: {{{', '.join(repr(m) + ': R(<right>)' for m in methods)}}} with the right "
+                f"add e.g. {name!r}: {{{', '.join(repr(m) + ': R(<right>)' for m in methods)}}} "
+                "with the right "
                 "from the design's Roles table (view/edit/fix/verify/sign/manage_members, or auth/public)"
             )
             continue
         if route.methods is not None:
             missing = sorted(set(route.methods) - set(entry))
             if missing:
-                problems.append(f"route {name!r} accepts {missing} but TABLE lists only {sorted(entry)}; add them")
+                problems.append(
+                    f"route {name!r} accepts {missing} but TABLE lists only {sorted(entry)}; add them"
+                )
         for kw in route.kwargs:
             if kw not in KWARGS:
                 problems.append(f"route {name!r} has URL parameter {kw!r}: add how to fill it to KWARGS")
@@ -462,7 +577,9 @@ def persona_user(world, persona):
 def url_for(route: Route, scene: Scene, foreign_pk: Any = None) -> str:
     kwargs = {}
     for kw in route.kwargs:
-        kwargs[kw] = KWARGS[kw](scene, route.name) if not (kw == "pk" and foreign_pk is not None) else foreign_pk
+        kwargs[kw] = (
+            KWARGS[kw](scene, route.name) if not (kw == "pk" and foreign_pk is not None) else foreign_pk
+        )
     try:
         return reverse(route.name, kwargs=kwargs)
     except Exception:  # unnamed route: fill the pattern by hand
@@ -551,7 +668,9 @@ def test_object_of_another_job_is_404(name, method, scene, client_for):
     foreign = scene.foreign[basename]
     client = client_for(scene.world.inspector)
     before = Event.objects.count()
-    response = send(client, method, url_for(route, scene, foreign_pk=foreign.pk), rule, scene, scene.world.inspector)
+    response = send(
+        client, method, url_for(route, scene, foreign_pk=foreign.pk), rule, scene, scene.world.inspector
+    )
     assert response.status_code == 404, (name, method, response.status_code, response.content[:200])
     assert Event.objects.count() == before
 
@@ -559,24 +678,29 @@ def test_object_of_another_job_is_404(name, method, scene, client_for):
 def test_wall_of_another_job_through_own_job_is_404(scene, client_for):
     client = client_for(scene.world.inspector)
     other = scene.foreign["wall"]
-    assert client.get(reverse("qa:wall", kwargs={"job_pk": scene.world.job.pk, "wall_pk": other.pk})).status_code \
+    assert (
+        client.get(reverse("qa:wall", kwargs={"job_pk": scene.world.job.pk, "wall_pk": other.pk})).status_code
         == 404
+    )
     url = reverse("api:opening-list", kwargs={"job_pk": scene.world.job.pk, "wall_pk": other.pk})
     assert client.get(url).status_code == 404
 
 
 def test_photo_of_another_job_through_own_job_is_404(scene, client_for):
     client = client_for(scene.world.inspector)
-    url = reverse("qa:photo-file", kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.foreign["photo"].pk,
-                                           "kind": "image"})
+    url = reverse(
+        "qa:photo-file",
+        kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.foreign["photo"].pk, "kind": "image"},
+    )
     assert client.get(url).status_code == 404
 
 
 def test_photo_file_is_the_stored_bytes_and_private(scene, client_for):
     client = client_for(scene.world.owner)
     for kind, field_name in (("image", "image"), ("thumb", "thumbnail")):
-        url = reverse("qa:photo-file", kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.photo.pk,
-                                               "kind": kind})
+        url = reverse(
+            "qa:photo-file", kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.photo.pk, "kind": kind}
+        )
         response = client.get(url)
         assert response.status_code == 200
         getattr(scene.photo, field_name).open("rb")
@@ -588,7 +712,9 @@ def test_removed_photo_is_404(scene, client_for):
     scene.photo.removed = True
     scene.photo.save()
     client = client_for(scene.world.inspector)
-    url = reverse("qa:photo-file", kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.photo.pk, "kind": "image"})
+    url = reverse(
+        "qa:photo-file", kwargs={"job_pk": scene.world.job.pk, "photo_id": scene.photo.pk, "kind": "image"}
+    )
     assert client.get(url).status_code == 404
 
 

@@ -50,27 +50,64 @@ def full_job(world, api):
     base = f"/api/jobs/{w.job.pk}"
     ids = []
     for trade, width in (("electrical", 3), ("drywall", 6), ("plumbing", 2)):
-        r = client.post(f"{base}/findings/", {"client_id": str(uuid.uuid4()), "wall": w.wall.pk, "kind": "slit",
-                                              "width": width, "length": 600, "trade": trade,
-                                              "note": "gap — «unicode» ✓"}, format="json")
+        r = client.post(
+            f"{base}/findings/",
+            {
+                "client_id": str(uuid.uuid4()),
+                "wall": w.wall.pk,
+                "kind": "slit",
+                "width": width,
+                "length": 600,
+                "trade": trade,
+                "note": "gap — «unicode» ✓",
+            },
+            format="json",
+        )
         assert r.status_code == 201, r.content
         ids.append(r.json()["id"])
     f1, f2, _ = (Finding.objects.get(pk=i) for i in ids)
-    assert api(w.electrician).post(f"{base}/findings/{f1.pk}/fix/", {"note": "sealed"}, format="json").status_code \
+    assert (
+        api(w.electrician)
+        .post(f"{base}/findings/{f1.pk}/fix/", {"note": "sealed"}, format="json")
+        .status_code
         == 200
+    )
     assert client.post(f"{base}/findings/{f1.pk}/verify/", {}, format="json").status_code == 200
     for finding, color in ((f1, (200, 10, 10)), (f2, (10, 200, 10))):
         up = SimpleUploadedFile("p.jpg", jpeg(color, gps=True), content_type="image/jpeg")
-        r = client.post(f"{base}/photos/", {"id": str(uuid.uuid4()), "finding": finding.pk, "image": up},
-                        format="multipart")
+        r = client.post(
+            f"{base}/photos/",
+            {"id": str(uuid.uuid4()), "finding": finding.pk, "image": up},
+            format="multipart",
+        )
         assert r.status_code == 201, r.content
     Opening.objects.create(wall=w.wall, kind="door", label="D1", width_m=0.9, height_m=2.1, rating=30)
-    op = SyncOperation.objects.create(op_id=uuid.uuid4(), job=w.job, user=w.inspector, device_id="phone-1",
-                                      kind="finding.edit", result={"ok": True})
-    Conflict.objects.create(finding=f2, operation=op, base_version=1, server_version={"note": "a"},
-                            device_version={"note": "b"}, created_by=w.inspector)
-    PhotoUpload.objects.create(id=uuid.uuid4(), job=w.job, wall=w.wall, finding=f2, total_bytes=10, sha256="0" * 64,
-                               received=b"\x00\x01\xff partial", user=w.inspector)
+    op = SyncOperation.objects.create(
+        op_id=uuid.uuid4(),
+        job=w.job,
+        user=w.inspector,
+        device_id="phone-1",
+        kind="finding.edit",
+        result={"ok": True},
+    )
+    Conflict.objects.create(
+        finding=f2,
+        operation=op,
+        base_version=1,
+        server_version={"note": "a"},
+        device_version={"note": "b"},
+        created_by=w.inspector,
+    )
+    PhotoUpload.objects.create(
+        id=uuid.uuid4(),
+        job=w.job,
+        wall=w.wall,
+        finding=f2,
+        total_bytes=10,
+        sha256="0" * 64,
+        received=b"\x00\x01\xff partial",
+        user=w.inspector,
+    )
     return w.job
 
 
@@ -88,7 +125,6 @@ def wipe_everything():
     import shutil
 
     from django.conf import settings
-
     from django.db import connection
 
     if connection.vendor == "postgresql":  # TRUNCATE refuses while deferred FK checks are pending
@@ -112,7 +148,9 @@ def test_round_trip_restores_everything_exactly(full_job, tmp_path):
 
     before = backup.job_data(full_job)
     files_before = media_of(before)
-    assert len(files_before) == 4 and before["models"]["qa.event"], "the fixture should hold photos and events"
+    assert len(files_before) == 4 and before["models"]["qa.event"], (
+        "the fixture should hold photos and events"
+    )
     path = tmp_path / "job.zip"
     manifest = backup.export_job(full_job, path)
     assert manifest["schema_version"] == backup.SCHEMA_VERSION
@@ -139,8 +177,9 @@ def test_round_trip_restores_everything_exactly(full_job, tmp_path):
     ]
     # New rows get fresh ids after a restore (PostgreSQL sequences moved past the restored ids).
     f = Finding.objects.first()
-    new = Finding.objects.create(job=f.job, wall=f.wall, kind="hole", diameter_m=0.01, trade="hvac",
-                                 created_by=f.created_by)
+    new = Finding.objects.create(
+        job=f.job, wall=f.wall, kind="hole", diameter_m=0.01, trade="hvac", created_by=f.created_by
+    )
     assert new.pk > max(r["id"] for r in before["models"]["qa.finding"])
 
 
@@ -194,8 +233,9 @@ def test_corrupt_archives_are_refused_and_nothing_is_written(full_job, tmp_path)
     good = tmp_path / "job.zip"
     backup.export_job(full_job, good)
     cases = {
-        "checksum mismatch for data.json": lambda n, b: b.replace(b'"Test Block A"', b'"Evil Block A"')
-        if n == "data.json" else b,
+        "checksum mismatch for data.json": lambda n, b: (
+            b.replace(b'"Test Block A"', b'"Evil Block A"') if n == "data.json" else b
+        ),
         "checksum mismatch for media/": lambda n, b: b[:-10] + b"\x00" * 10 if n.startswith("media/") else b,
         "listed in SHA256SUMS but missing": lambda n, b: None if n.startswith("media/") else b,
         "SHA256SUMS is missing": lambda n, b: None if n == "SHA256SUMS" else b,
@@ -252,7 +292,9 @@ def test_newer_schema_is_refused(full_job, tmp_path):
     with zipfile.ZipFile(newer, "w") as zf:
         for n, b in members.items():
             zf.writestr(n, b)
-        zf.writestr("SHA256SUMS", "".join(f"{hashlib.sha256(b).hexdigest()}  {n}\n" for n, b in members.items()))
+        zf.writestr(
+            "SHA256SUMS", "".join(f"{hashlib.sha256(b).hexdigest()}  {n}\n" for n, b in members.items())
+        )
     with pytest.raises(backup.BackupError, match="schema version"):
         backup.read_archive(newer)
 
@@ -299,19 +341,33 @@ def test_commands(full_job, tmp_path):
     assert "Restored Test Block A" in out.getvalue()
 
 
-@pytest.mark.skipif(os.environ.get("DATABASE_URL", "").startswith("postgres"), reason="SQLite command; PostgreSQL "
-                    "uses pg_dump -Fc (documented)")
+@pytest.mark.skipif(
+    os.environ.get("DATABASE_URL", "").startswith("postgres"),
+    reason="SQLite command; PostgreSQL uses pg_dump -Fc (documented)",
+)
 def test_backup_sqlite_command_copies_a_live_database(tmp_path):
     import sqlite3
 
-    env = {**os.environ, "SEALWALK_DATA_DIR": str(tmp_path), "DATABASE_URL": "",
-           "DJANGO_SETTINGS_MODULE": "qa.settings_test"}
-    run = lambda *a: subprocess.run([sys.executable, "manage.py", *a], cwd=ROOT, env=env,  # noqa: E731
-                                    capture_output=True, text=True, timeout=120)
+    env = {
+        **os.environ,
+        "SEALWALK_DATA_DIR": str(tmp_path),
+        "DATABASE_URL": "",
+        "DJANGO_SETTINGS_MODULE": "qa.settings_test",
+    }
+    run = lambda *a: subprocess.run(
+        [sys.executable, "manage.py", *a],
+        cwd=ROOT,
+        env=env,  # noqa: E731
+        capture_output=True,
+        text=True,
+        timeout=120,
+    )
     assert run("migrate", "-v0").returncode == 0
     live = sqlite3.connect(tmp_path / "db.sqlite3")
-    live.execute("INSERT INTO qa_job (name, address, units, rating_scheme, rule_set, created_at, updated_at) "
-                 "VALUES ('Copy me', '', 'metric', 'stc', '', '2026-01-01', '2026-01-01')")
+    live.execute(
+        "INSERT INTO qa_job (name, address, units, rating_scheme, rule_set, created_at, updated_at) "
+        "VALUES ('Copy me', '', 'metric', 'stc', '', '2026-01-01', '2026-01-01')"
+    )
     live.commit()  # the connection stays open while the copy runs
     result = run("backup_sqlite", str(tmp_path / "copy.sqlite3"))
     assert result.returncode == 0, result.stderr

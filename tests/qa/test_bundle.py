@@ -14,8 +14,9 @@ def url(job) -> str:
 
 
 def make_finding(world, trade):
-    return Finding.objects.create(job=world.job, wall=world.wall, kind="hole", diameter_m=0.02, trade=trade,
-                                  created_by=world.inspector)
+    return Finding.objects.create(
+        job=world.job, wall=world.wall, kind="hole", diameter_m=0.02, trade=trade, created_by=world.inspector
+    )
 
 
 def test_bundle_holds_the_job_in_its_units(world, api):

@@ -30,14 +30,30 @@ def server():
 
 
 def finding_op(server, wall: int) -> dict:
-    return {"op_id": str(uuid.uuid4()), "kind": "finding.create", "device_at": "2026-06-01T09:00:00Z",
-            "payload": {"client_id": str(uuid.uuid4()), "wall": wall, "kind": "slit", "width": 4, "length": 300,
-                        "trade": "electrical", "note": "fault test"}}
+    return {
+        "op_id": str(uuid.uuid4()),
+        "kind": "finding.create",
+        "device_at": "2026-06-01T09:00:00Z",
+        "payload": {
+            "client_id": str(uuid.uuid4()),
+            "wall": wall,
+            "kind": "slit",
+            "width": 4,
+            "length": 300,
+            "trade": "electrical",
+            "note": "fault test",
+        },
+    }
 
 
 def sync(server, ops, timeout=60):
-    return server.request("POST", f"/api/jobs/{server.job}/sync/", "insp", {"device_id": "fault-phone", "ops": ops},
-                          timeout=timeout)
+    return server.request(
+        "POST",
+        f"/api/jobs/{server.job}/sync/",
+        "insp",
+        {"device_id": "fault-phone", "ops": ops},
+        timeout=timeout,
+    )
 
 
 def send_until_done(send, attempts: int = 20):
@@ -62,9 +78,12 @@ def assert_exact(server, ops):
     rows = db_query(server, "SELECT client_id FROM qa_finding WHERE job_id = %s", (server.job,))
     stored = [str(r[0]).replace("-", "") for r in rows]
     for cid in ids:
-        assert stored.count(cid.replace("-", "")) == 1, f"finding {cid}: {stored.count(cid.replace('-', ''))} rows"
-    events = db_query(server, "SELECT count(*) FROM qa_event WHERE verb = 'finding.created' AND job_id = %s",
-                      (server.job,))[0][0]
+        assert stored.count(cid.replace("-", "")) == 1, (
+            f"finding {cid}: {stored.count(cid.replace('-', ''))} rows"
+        )
+    events = db_query(
+        server, "SELECT count(*) FROM qa_event WHERE verb = 'finding.created' AND job_id = %s", (server.job,)
+    )[0][0]
     findings = db_query(server, "SELECT count(*) FROM qa_finding WHERE job_id = %s", (server.job,))[0][0]
     assert events == findings, "one creation event per finding, no more, no less"
 
@@ -97,7 +116,7 @@ def test_worker_killed_during_a_sync_batch(server):
 
 
 def big_photo() -> bytes:
-    """A 3000 x 2000 noisy PNG (several MB): decoding and re-encoding it takes long enough to be interrupted."""
+    """A 3000 x 2000 noisy PNG (several MB): decoding and re-encoding it takes long enough to interrupt."""
     rnd = random.Random(11)
     img = Image.frombytes("RGB", (600, 400), rnd.randbytes(600 * 400 * 3)).resize((3000, 2000))
     buf = io.BytesIO()
@@ -110,8 +129,12 @@ def multipart(fields: dict, file_name: str, payload: bytes) -> tuple[str, bytes]
     parts = []
     for k, v in fields.items():
         parts.append(f'--{boundary}\r\nContent-Disposition: form-data; name="{k}"\r\n\r\n{v}\r\n'.encode())
-    parts.append(f'--{boundary}\r\nContent-Disposition: form-data; name="image"; filename="{file_name}"\r\n'
-                 f"Content-Type: image/png\r\n\r\n".encode() + payload + b"\r\n")
+    parts.append(
+        f'--{boundary}\r\nContent-Disposition: form-data; name="image"; filename="{file_name}"\r\n'
+        f"Content-Type: image/png\r\n\r\n".encode()
+        + payload
+        + b"\r\n"
+    )
     parts.append(f"--{boundary}--\r\n".encode())
     return f"multipart/form-data; boundary={boundary}", b"".join(parts)
 
@@ -135,12 +158,19 @@ def test_worker_killed_during_a_photo_upload(server):
     status, again = post()
     assert status == 200 and again["id"] == photo_id  # a replay answers the stored photo
     status, data = server.request("GET", again["url"], "insp")
-    assert status in (200, 302, 403, 404)  # the file route is session-only; the record itself is checked above
+    assert status in (
+        200,
+        302,
+        403,
+        404,
+    )  # the file route is session-only; the record itself is checked above
 
 
-@pytest.mark.skipif(not os.environ.get("DATABASE_URL", "").startswith("postgres"),
-                    reason="cutting the database connection needs PostgreSQL (pg_terminate_backend); "
-                           "CI runs this in its PostgreSQL pass")
+@pytest.mark.skipif(
+    not os.environ.get("DATABASE_URL", "").startswith("postgres"),
+    reason="cutting the database connection needs PostgreSQL (pg_terminate_backend); "
+    "CI runs this in its PostgreSQL pass",
+)
 def test_database_connection_cut_during_a_sync_batch(server):
     import psycopg
 
@@ -149,8 +179,10 @@ def test_database_connection_cut_during_a_sync_batch(server):
 
     def terminate():
         with psycopg.connect(server.extra["db_url"], autocommit=True) as conn:
-            rows = conn.execute("SELECT pg_terminate_backend(pid) FROM pg_stat_activity "
-                                "WHERE datname = current_database() AND pid <> pg_backend_pid()").fetchall()
+            rows = conn.execute(
+                "SELECT pg_terminate_backend(pid) FROM pg_stat_activity "
+                "WHERE datname = current_database() AND pid <> pg_backend_pid()"
+            ).fetchall()
             cut.extend(rows)
 
     timer = in_background(terminate, 0.3)

@@ -27,7 +27,10 @@ MAX_EXAMPLES = int(os.environ.get("FUZZ_MAX_EXAMPLES", 6))
 PERSONAS = ["inspector", "crew", "owner", "outsider"]
 #: Operations left out, with the reason.
 SKIP = {
-    ("POST", "/api/auth/token/revoke/"): "would revoke the persona's own token mid-run (tested in test_hardening)",
+    (
+        "POST",
+        "/api/auth/token/revoke/",
+    ): "would revoke the persona's own token mid-run (tested in test_hardening)",
 }
 
 
@@ -45,8 +48,15 @@ def fuzz_world(world, transactional_db):
 
     from qa.models import Finding
 
-    finding = Finding.objects.create(job=world.job, wall=world.wall, kind="slit", width_m=0.003, length_m=0.5,
-                                     trade="electrical", created_by=world.inspector)
+    finding = Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        kind="slit",
+        width_m=0.003,
+        length_m=0.5,
+        trade="electrical",
+        created_by=world.inspector,
+    )
     tokens = {p: Token.objects.create(user=u).key for p, u in world.users().items() if p in PERSONAS}
     ids = {"job_pk": world.job.pk, "wall_pk": world.wall.pk, "finding_pk": finding.pk}
     return world, tokens, ids, finding
@@ -86,8 +96,14 @@ def test_api_survives_fuzzing_as_every_role(live_server, fuzz_world):
     checks = [not_a_server_error, response_schema_conformance, content_type_conformance]
 
     def make_run(op, persona, headers):
-        @settings(max_examples=MAX_EXAMPLES, derandomize=True, deadline=None, database=None,
-                  phases=[Phase.explicit, Phase.generate], suppress_health_check=list(HealthCheck))
+        @settings(
+            max_examples=MAX_EXAMPLES,
+            derandomize=True,
+            deadline=None,
+            database=None,
+            phases=[Phase.explicit, Phase.generate],
+            suppress_health_check=list(HealthCheck),
+        )
         @given(case=op.as_strategy(), flip=st.booleans())
         def run(case, flip):
             _pin(case, ids, finding, flip)
@@ -100,8 +116,10 @@ def test_api_survives_fuzzing_as_every_role(live_server, fuzz_world):
                 case.validate_response(response, checks=checks, headers=headers)
             except (Exception, BaseExceptionGroup) as exc:  # noqa: BLE001 - collect all, report together
                 text = str(exc).strip().splitlines()
-                failures.append(f"{persona} {op.method.upper()} {op.path} -> {response.status_code}: "
-                                f"{' | '.join(text[:4])[:400]}")
+                failures.append(
+                    f"{persona} {op.method.upper()} {op.path} -> {response.status_code}: "
+                    f"{' | '.join(text[:4])[:400]}"
+                )
 
         return run
 
@@ -115,5 +133,7 @@ def test_api_survives_fuzzing_as_every_role(live_server, fuzz_world):
     unique = [f for f in unique if f not in known]
     if known:
         print(f"{len(known)} known failures (reported, see KNOWN):\n" + "\n".join(known[:20]))
-    assert not unique, f"{len(unique)} distinct failures in {seen['requests']} requests:\n" + "\n".join(unique[:40])
+    assert not unique, f"{len(unique)} distinct failures in {seen['requests']} requests:\n" + "\n".join(
+        unique[:40]
+    )
     assert seen["requests"] >= len(operations) * len(PERSONAS)

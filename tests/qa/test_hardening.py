@@ -52,8 +52,12 @@ def assert_secure_headers(response, where: str):
     assert d.get("frame-ancestors") == ["'none'"], where
     assert response.headers.get("X-Frame-Options") == "DENY", where
     assert response.headers.get("X-Content-Type-Options") == "nosniff", where
-    assert response.headers.get("Referrer-Policy") in {"same-origin", "no-referrer", "strict-origin-when-cross-origin",
-                                                       "strict-origin"}, where
+    assert response.headers.get("Referrer-Policy") in {
+        "same-origin",
+        "no-referrer",
+        "strict-origin-when-cross-origin",
+        "strict-origin",
+    }, where
 
 
 # --- headers -------------------------------------------------------------------------------------
@@ -81,7 +85,7 @@ def test_templates_have_no_inline_script_or_handlers():
                 problems.append(f"{path.relative_to(ROOT)}: inline <script{attrs}>")
         for m in re.finditer(r"<[a-z][^>]*\s(on[a-z]+)\s*=", text, flags=re.I):
             problems.append(f"{path.relative_to(ROOT)}: inline event handler {m.group(1)}=")
-        for m in re.finditer(r"""href\s*=\s*["']\s*javascript:""", text, flags=re.I):
+        for _ in re.finditer(r"""href\s*=\s*["']\s*javascript:""", text, flags=re.I):
             problems.append(f"{path.relative_to(ROOT)}: javascript: URL")
     assert not problems, "\n".join(problems)
 
@@ -92,12 +96,19 @@ GOOD_KEY = "k" * 20 + "-not-a-real-key-but-long-enough-0123456789"
 
 
 def run_settings(env: dict, code: str) -> subprocess.CompletedProcess:
-    base = {k: v for k, v in os.environ.items() if k not in {"SECRET_KEY", "ALLOWED_HOSTS", "SECURE_HTTPS",
-                                                             "SEALWALK_DEBUG", "DJANGO_SETTINGS_MODULE"}}
-    base.update({"DJANGO_SETTINGS_MODULE": "qa.settings", "DATABASE_URL": "sqlite:////tmp/unused-sealwalk.db"})
+    base = {
+        k: v
+        for k, v in os.environ.items()
+        if k
+        not in {"SECRET_KEY", "ALLOWED_HOSTS", "SECURE_HTTPS", "SEALWALK_DEBUG", "DJANGO_SETTINGS_MODULE"}
+    }
+    base.update(
+        {"DJANGO_SETTINGS_MODULE": "qa.settings", "DATABASE_URL": "sqlite:////tmp/unused-sealwalk.db"}
+    )
     base.update(env)
-    return subprocess.run([sys.executable, "-c", code], cwd=ROOT, env=base, capture_output=True, text=True,
-                          timeout=60)
+    return subprocess.run(
+        [sys.executable, "-c", code], cwd=ROOT, env=base, capture_output=True, text=True, timeout=60
+    )
 
 
 SETUP = "import django; django.setup(); print('started')"
@@ -108,8 +119,14 @@ SETUP = "import django; django.setup(); print('started')"
     [
         ({"SEALWALK_DEBUG": "0", "ALLOWED_HOSTS": "walls.example.org"}, "SECRET_KEY"),
         ({"SEALWALK_DEBUG": "0", "ALLOWED_HOSTS": "walls.example.org", "SECRET_KEY": "short"}, "SECRET_KEY"),
-        ({"SEALWALK_DEBUG": "0", "ALLOWED_HOSTS": "walls.example.org",
-          "SECRET_KEY": "dev-only-insecure-key-for-the-local-demo"}, "SECRET_KEY"),
+        (
+            {
+                "SEALWALK_DEBUG": "0",
+                "ALLOWED_HOSTS": "walls.example.org",
+                "SECRET_KEY": "dev-only-insecure-key-for-the-local-demo",
+            },
+            "SECRET_KEY",
+        ),
         ({"SEALWALK_DEBUG": "0", "SECRET_KEY": GOOD_KEY}, "ALLOWED_HOSTS"),
     ],
 )
@@ -120,8 +137,10 @@ def test_production_refuses_to_start_without_secrets(env, named):
 
 
 def test_production_starts_with_secrets_and_debug_off():
-    result = run_settings({"SEALWALK_DEBUG": "0", "SECRET_KEY": GOOD_KEY, "ALLOWED_HOSTS": "walls.example.org"},
-                          SETUP + "; from django.conf import settings; print(settings.DEBUG)")
+    result = run_settings(
+        {"SEALWALK_DEBUG": "0", "SECRET_KEY": GOOD_KEY, "ALLOWED_HOSTS": "walls.example.org"},
+        SETUP + "; from django.conf import settings; print(settings.DEBUG)",
+    )
     assert result.returncode == 0, result.stderr[-800:]
     assert result.stdout.split() == ["started", "False"]
 
@@ -145,7 +164,12 @@ print(settings.SESSION_COOKIE_SECURE, settings.CSRF_COOKIE_SECURE, settings.SESS
 
 
 def test_https_mode_sends_hsts_and_secure_cookies():
-    env = {"SEALWALK_DEBUG": "0", "SECRET_KEY": GOOD_KEY, "ALLOWED_HOSTS": "walls.example.org", "SECURE_HTTPS": "1"}
+    env = {
+        "SEALWALK_DEBUG": "0",
+        "SECRET_KEY": GOOD_KEY,
+        "ALLOWED_HOSTS": "walls.example.org",
+        "SECURE_HTTPS": "1",
+    }
     result = run_settings(env, HTTPS_PROBE)
     assert result.returncode == 0, result.stderr[-1500:]
     lines = result.stdout.strip().splitlines()
@@ -173,8 +197,9 @@ def signed_in_client(username: str):
     client = APIClient(enforce_csrf_checks=True)
     page = client.get(reverse("qa:login"))
     token = page.cookies["csrftoken"].value
-    response = client.post(reverse("qa:login"), {"username": username, "password": PASSWORD,
-                                                 "csrfmiddlewaretoken": token})
+    response = client.post(
+        reverse("qa:login"), {"username": username, "password": PASSWORD, "csrfmiddlewaretoken": token}
+    )
     assert response.status_code == 302, response.content[:300]
     return client
 
@@ -198,11 +223,18 @@ def test_session_write_without_csrf_token_is_refused(world):
 def test_session_step_without_csrf_token_is_refused(world):
     from qa.models import Finding
 
-    f = Finding.objects.create(job=world.job, wall=world.wall, kind="hole", diameter_m=0.01, trade="electrical",
-                               created_by=world.inspector)
+    f = Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        kind="hole",
+        diameter_m=0.01,
+        trade="electrical",
+        created_by=world.inspector,
+    )
     client = signed_in_client("elec")
-    response = client.post(reverse("api:finding-fix", kwargs={"job_pk": world.job.pk, "pk": f.pk}), {},
-                           format="json")
+    response = client.post(
+        reverse("api:finding-fix", kwargs={"job_pk": world.job.pk, "pk": f.pk}), {}, format="json"
+    )
     assert response.status_code == 403
     f.refresh_from_db()
     assert f.status == "open"
@@ -215,8 +247,12 @@ def test_token_auth_needs_no_csrf_token(world):
     token = Token.objects.create(user=world.inspector)
     client = APIClient(enforce_csrf_checks=True)
     body = {"tag": "9-98", "level": "9", "length": 4, "height": 2.7, "wall_type": world.wall_type.pk}
-    response = client.post(reverse("api:wall-list", kwargs={"job_pk": world.job.pk}), body, format="json",
-                           HTTP_AUTHORIZATION=f"Token {token.key}")
+    response = client.post(
+        reverse("api:wall-list", kwargs={"job_pk": world.job.pk}),
+        body,
+        format="json",
+        HTTP_AUTHORIZATION=f"Token {token.key}",
+    )
     assert response.status_code == 201
 
 
@@ -258,7 +294,9 @@ def test_login_lock_is_case_insensitive_and_in_the_shared_cache(world, client, s
     settings.LOGIN_FAILURE_LIMIT = 3
     for name in ("insp", "INSP", "Insp"):
         attempt(client, name, "wrong")
-    assert cache.get(login_throttle.throttle_key("insp", "10.0.0.1")) == 3  # Django's cache, not process memory
+    assert (
+        cache.get(login_throttle.throttle_key("insp", "10.0.0.1")) == 3
+    )  # Django's cache, not process memory
     assert attempt(client, "insp", PASSWORD).status_code == 429
 
 
@@ -292,7 +330,10 @@ def test_token_endpoint_shares_the_lock(world, settings):
     client = APIClient()
     url = reverse("api:token")
     for _ in range(3):
-        assert client.post(url, {"username": "insp", "password": "nope"}, REMOTE_ADDR="10.0.0.7").status_code == 400
+        assert (
+            client.post(url, {"username": "insp", "password": "nope"}, REMOTE_ADDR="10.0.0.7").status_code
+            == 400
+        )
     response = client.post(url, {"username": "insp", "password": PASSWORD}, REMOTE_ADDR="10.0.0.7")
     assert response.status_code == 429
     assert "Too many failed sign-ins" in response.json()["detail"]
@@ -341,7 +382,9 @@ def test_inactive_user_token_is_refused(world):
     token = Token.objects.create(user=world.inspector)
     world.inspector.is_active = False
     world.inspector.save()
-    assert APIClient().get(reverse("api:job-list"), HTTP_AUTHORIZATION=f"Token {token.key}").status_code == 403
+    assert (
+        APIClient().get(reverse("api:job-list"), HTTP_AUTHORIZATION=f"Token {token.key}").status_code == 403
+    )
 
 
 # --- the audit trail is append-only --------------------------------------------------------------------
@@ -350,8 +393,11 @@ def test_inactive_user_token_is_refused(world):
 def event_routes():
     from tests.qa.test_access_matrix import iter_routes
 
-    return [r for r in iter_routes()
-            if ("event" in r.name.lower() or "event" in r.pattern.lower()) and not r.pattern.startswith("admin/")]
+    return [
+        r
+        for r in iter_routes()
+        if ("event" in r.name.lower() or "event" in r.pattern.lower()) and not r.pattern.startswith("admin/")
+    ]
 
 
 def test_no_route_writes_events():
@@ -373,7 +419,10 @@ def test_event_writes_through_the_api_are_refused(world):
     before = list(Event.objects.values_list("id", "verb", "data"))
     for method in ("post", "put", "patch", "delete"):
         assert getattr(client, method)(base, {"verb": "x"}, format="json").status_code == 405
-        assert getattr(client, method)(f"{base}{event.pk}/", {"verb": "x"}, format="json").status_code in (404, 405)
+        assert getattr(client, method)(f"{base}{event.pk}/", {"verb": "x"}, format="json").status_code in (
+            404,
+            405,
+        )
     assert list(Event.objects.values_list("id", "verb", "data")) == before
 
 
@@ -415,7 +464,9 @@ def test_admin_cannot_add_change_or_delete_events(world, client):
     assert client.post(reverse("admin:qa_event_delete", args=[event.pk]), {"post": "yes"}).status_code == 403
     assert client.get(reverse("admin:qa_event_add")).status_code == 403
     changelist = reverse("admin:qa_event_changelist")
-    response = client.post(changelist, {"action": "delete_selected", "_selected_action": [event.pk], "post": "yes"})
+    response = client.post(
+        changelist, {"action": "delete_selected", "_selected_action": [event.pk], "post": "yes"}
+    )
     assert Event.objects.filter(pk=event.pk, verb="wall.created").exists()
     assert response.status_code in (200, 302, 403)
 

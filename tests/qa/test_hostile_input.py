@@ -31,7 +31,11 @@ from qa import backup
 
 def media_files(settings) -> dict[str, bytes]:
     root = Path(settings.MEDIA_ROOT)
-    return {str(p.relative_to(root)): p.read_bytes() for p in root.rglob("*") if p.is_file()} if root.exists() else {}
+    return (
+        {str(p.relative_to(root)): p.read_bytes() for p in root.rglob("*") if p.is_file()}
+        if root.exists()
+        else {}
+    )
 
 
 def snapshot(world, settings) -> tuple:
@@ -52,7 +56,12 @@ def png_bomb(width=30_000, height=30_000) -> bytes:
     the zlib stream is all zeros (compresses about 1000:1)."""
 
     def chunk(kind: bytes, data: bytes) -> bytes:
-        return struct.pack(">I", len(data)) + kind + data + struct.pack(">I", zlib.crc32(kind + data) & 0xFFFFFFFF)
+        return (
+            struct.pack(">I", len(data))
+            + kind
+            + data
+            + struct.pack(">I", zlib.crc32(kind + data) & 0xFFFFFFFF)
+        )
 
     row = b"\x00" + b"\x00" * ((width + 7) // 8)
     comp = zlib.compressobj(9)
@@ -65,15 +74,17 @@ def huge_header_jpeg() -> bytes:
     """A JPEG whose frame header claims 60000 x 60000 pixels (3.6 gigapixels) on a tiny body."""
     data = bytearray(jpeg((16, 16)))
     i = data.index(b"\xff\xc0")  # baseline start-of-frame: length(2) precision(1) height(2) width(2)
-    data[i + 5:i + 9] = struct.pack(">HH", 60000, 60000)
+    data[i + 5 : i + 9] = struct.pack(">HH", 60000, 60000)
     return bytes(data)
 
 
 SVG = b"""<?xml version="1.0"?><svg xmlns="http://www.w3.org/2000/svg" width="10" height="10">
 <script>alert(document.cookie)</script><rect width="10" height="10"/></svg>"""
 HTML = b"<!doctype html><html><body><script>fetch('/api/jobs/')</script></body></html>"
-GIF = b"GIF89a\x01\x00\x01\x00\x80\x00\x00\x00\x00\x00\xff\xff\xff!\xf9\x04\x01\x00\x00\x00\x00,\x00\x00\x00\x00" \
-      b"\x01\x00\x01\x00\x00\x02\x02D\x01\x00;"
+GIF = (
+    b"GIF89a\x01\x00\x01\x00\x80\x00\x00\x00\x00\x00\xff\xff\xff!\xf9\x04\x01\x00\x00\x00\x00,\x00\x00\x00\x00"
+    b"\x01\x00\x01\x00\x00\x02\x02D\x01\x00;"
+)
 
 BAD_UPLOADS = {
     "text named .jpg": (b"just some notes, not a photo\n" * 20, "notes.jpg", "image/jpeg"),
@@ -94,18 +105,30 @@ BAD_UPLOADS = {
 def finding(world):
     from qa.models import Finding
 
-    return Finding.objects.create(job=world.job, wall=world.wall, kind="slit", width_m=0.003, length_m=0.5,
-                                  trade="electrical", created_by=world.inspector)
+    return Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        kind="slit",
+        width_m=0.003,
+        length_m=0.5,
+        trade="electrical",
+        created_by=world.inspector,
+    )
 
 
 def upload(api, world, finding, data: bytes, name: str, content_type: str, user=None):
     from django.core.files.uploadedfile import SimpleUploadedFile
 
     client = api(user or world.inspector)
-    return client.post(f"/api/jobs/{world.job.pk}/photos/",
-                       {"id": str(uuid.uuid4()), "finding": finding.pk,
-                        "image": SimpleUploadedFile(name, data, content_type=content_type)},
-                       format="multipart")
+    return client.post(
+        f"/api/jobs/{world.job.pk}/photos/",
+        {
+            "id": str(uuid.uuid4()),
+            "finding": finding.pk,
+            "image": SimpleUploadedFile(name, data, content_type=content_type),
+        },
+        format="multipart",
+    )
 
 
 @pytest.mark.parametrize("case", list(BAD_UPLOADS))
@@ -198,8 +221,16 @@ def test_walk_upload_of_a_non_image_is_refused(world, finding, api, settings):
     client = api(world.inspector)
     photo_id = str(uuid.uuid4())
     before = snapshot(world, settings)
-    r = client.post(open_url, {"id": photo_id, "finding": str(finding.client_id), "total_bytes": len(SVG),
-                               "sha256": hashlib.sha256(SVG).hexdigest()}, format="json")
+    r = client.post(
+        open_url,
+        {
+            "id": photo_id,
+            "finding": str(finding.client_id),
+            "total_bytes": len(SVG),
+            "sha256": hashlib.sha256(SVG).hexdigest(),
+        },
+        format="json",
+    )
     assert r.status_code == 201, r.content
     chunk_url = reverse("qa:walk-upload", kwargs={"job_pk": world.job.pk, "photo_id": photo_id})
     r = client.generic("PUT", chunk_url + "?offset=0", SVG, content_type="application/octet-stream")
@@ -232,7 +263,9 @@ def marked_up(world, finding):
     finding.note = "note " + XSS
     finding.save()
     SealPoint.objects.filter(wall=world.wall).update(label="point " + XSS)
-    Opening.objects.create(wall=world.wall, kind="door", label="door " + XSS, width_m=0.9, height_m=2.1, rating=30)
+    Opening.objects.create(
+        wall=world.wall, kind="door", label="door " + XSS, width_m=0.9, height_m=2.1, rating=30
+    )
     world.inspector.first_name = XSS
     world.inspector.save()
     return world
@@ -266,7 +299,7 @@ def report_or_xfail(name, w):
         pytest.xfail("report not yet landed")
 
 
-FORMULAS = ["=HYPERLINK(\"http://evil.example\",\"x\")", "+1+1", "-2+3", "@SUM(A1:A2)", "\t=1", "\r=1"]
+FORMULAS = ['=HYPERLINK("http://evil.example","x")', "+1+1", "-2+3", "@SUM(A1:A2)", "\t=1", "\r=1"]
 
 
 def test_csv_cells_cannot_start_a_formula(world, finding, client):
@@ -274,8 +307,16 @@ def test_csv_cells_cannot_start_a_formula(world, finding, client):
 
     url = report_or_xfail("qa:report-csv", world)
     for i, text in enumerate(FORMULAS):
-        Finding.objects.create(job=world.job, wall=world.wall, kind="hole", diameter_m=0.01, trade="electrical",
-                               note=text, created_by=world.inspector, count=1 + i)
+        Finding.objects.create(
+            job=world.job,
+            wall=world.wall,
+            kind="hole",
+            diameter_m=0.01,
+            trade="electrical",
+            note=text,
+            created_by=world.inspector,
+            count=1 + i,
+        )
     world.wall.location = "=cmd|' /C calc'!A0"
     world.wall.save()
     client.force_login(world.owner)
@@ -283,9 +324,11 @@ def test_csv_cells_cannot_start_a_formula(world, finding, client):
     assert response.status_code == 200
     rows = list(csv.reader(io.StringIO(response.content.decode("utf-8-sig"))))
     cells = [c for row in rows for c in row]
-    dangerous = [c for c in cells if c[:1] in ("=", "+", "@", "\t", "\r") or (c[:1] == "-" and not _number(c))]
+    dangerous = [
+        c for c in cells if c[:1] in ("=", "+", "@", "\t", "\r") or (c[:1] == "-" and not _number(c))
+    ]
     assert not dangerous, dangerous
-    assert any(c.endswith("=HYPERLINK(\"http://evil.example\",\"x\")") for c in cells)  # kept, neutralised
+    assert any(c.endswith('=HYPERLINK("http://evil.example","x")') for c in cells)  # kept, neutralised
 
 
 def _number(cell: str) -> bool:
@@ -310,8 +353,22 @@ def test_pdf_renders_hostile_text(marked_up, client, finding):
 
 # --- absurd numbers in every numeric field of every write endpoint ---------------------------------------
 
-ABSURD_JSON = ["NaN", "nan", "Infinity", "-Infinity", "inf", "-inf", "1e999", "-1e999", 1e308, -1e308, "1e308",
-               2**64, -(2**63) - 1, "0x10"]
+ABSURD_JSON = [
+    "NaN",
+    "nan",
+    "Infinity",
+    "-Infinity",
+    "inf",
+    "-inf",
+    "1e999",
+    "-1e999",
+    1e308,
+    -1e308,
+    "1e308",
+    2**64,
+    -(2**63) - 1,
+    "0x10",
+]
 NEGATIVE_ZERO = [-0.0, "-0"]
 
 
@@ -322,11 +379,17 @@ def numeric_fields(serializer_class, context) -> list[tuple[str, str]]:
     for name, f in fields.items():
         if f.read_only:
             continue
-        if isinstance(f, serializers.FloatField | serializers.IntegerField | serializers.DecimalField
-                      | serializers.PrimaryKeyRelatedField):
+        if isinstance(
+            f,
+            serializers.FloatField
+            | serializers.IntegerField
+            | serializers.DecimalField
+            | serializers.PrimaryKeyRelatedField,
+        ):
             out.append((name, "scalar"))
         elif isinstance(f, serializers.ListField) and isinstance(
-                f.child, serializers.FloatField | serializers.IntegerField):
+            f.child, serializers.FloatField | serializers.IntegerField
+        ):
             out.append((name, "list"))
     return out
 
@@ -340,21 +403,79 @@ def write_endpoints(world, finding):
     j, w = world.job.pk, world.wall.pk
     opening = Opening.objects.create(wall=world.wall, kind="door", width_m=0.9, height_m=2.1, rating=30)
     point = world.wall.seal_points.first()
-    finding_body = {"client_id": str(uuid.uuid4()), "wall": w, "kind": "slit", "width": 3, "length": 400,
-                    "trade": "electrical"}
+    finding_body = {
+        "client_id": str(uuid.uuid4()),
+        "wall": w,
+        "kind": "slit",
+        "width": 3,
+        "length": 400,
+        "trade": "electrical",
+    }
     return [
-        ("walltype create", "post", f"/api/jobs/{j}/wall-types/", {"code": "N1", "name": "n", "construction":
-         "wood_stud", "tl": FLAT_50, "tl_source": "lab", "thickness": 120}, s.WallTypeSerializer),
-        ("walltype patch", "patch", f"/api/jobs/{j}/wall-types/{world.wall_type.pk}/", {}, s.WallTypeSerializer),
-        ("wall create", "post", f"/api/jobs/{j}/walls/", {"tag": "N-1", "level": "1", "length": 4, "height": 2.7,
-         "wall_type": world.wall_type.pk, "target_rating": 50}, s.WallSerializer),
+        (
+            "walltype create",
+            "post",
+            f"/api/jobs/{j}/wall-types/",
+            {
+                "code": "N1",
+                "name": "n",
+                "construction": "wood_stud",
+                "tl": FLAT_50,
+                "tl_source": "lab",
+                "thickness": 120,
+            },
+            s.WallTypeSerializer,
+        ),
+        (
+            "walltype patch",
+            "patch",
+            f"/api/jobs/{j}/wall-types/{world.wall_type.pk}/",
+            {},
+            s.WallTypeSerializer,
+        ),
+        (
+            "wall create",
+            "post",
+            f"/api/jobs/{j}/walls/",
+            {
+                "tag": "N-1",
+                "level": "1",
+                "length": 4,
+                "height": 2.7,
+                "wall_type": world.wall_type.pk,
+                "target_rating": 50,
+            },
+            s.WallSerializer,
+        ),
         ("wall patch", "patch", f"/api/jobs/{j}/walls/{w}/", {}, s.WallSerializer),
-        ("opening create", "post", f"/api/jobs/{j}/walls/{w}/openings/", {"kind": "window", "width": 1,
-         "height": 1, "rating": 30, "tl": FLAT_50}, s.OpeningSerializer),
-        ("opening patch", "patch", f"/api/jobs/{j}/walls/{w}/openings/{opening.pk}/", {}, s.OpeningSerializer),
-        ("sealpoint create", "post", f"/api/jobs/{j}/walls/{w}/seal-points/", {"label": "x", "trade": "drywall",
-         "position": 3}, s.SealPointSerializer),
-        ("sealpoint patch", "patch", f"/api/jobs/{j}/walls/{w}/seal-points/{point.pk}/", {}, s.SealPointSerializer),
+        (
+            "opening create",
+            "post",
+            f"/api/jobs/{j}/walls/{w}/openings/",
+            {"kind": "window", "width": 1, "height": 1, "rating": 30, "tl": FLAT_50},
+            s.OpeningSerializer,
+        ),
+        (
+            "opening patch",
+            "patch",
+            f"/api/jobs/{j}/walls/{w}/openings/{opening.pk}/",
+            {},
+            s.OpeningSerializer,
+        ),
+        (
+            "sealpoint create",
+            "post",
+            f"/api/jobs/{j}/walls/{w}/seal-points/",
+            {"label": "x", "trade": "drywall", "position": 3},
+            s.SealPointSerializer,
+        ),
+        (
+            "sealpoint patch",
+            "patch",
+            f"/api/jobs/{j}/walls/{w}/seal-points/{point.pk}/",
+            {},
+            s.SealPointSerializer,
+        ),
         ("finding create", "post", f"/api/jobs/{j}/findings/", finding_body, s.FindingSerializer),
         ("finding patch", "patch", f"/api/jobs/{j}/findings/{finding.pk}/", {}, s.FindingSerializer),
         ("finding fix", "post", f"/api/jobs/{j}/findings/{finding.pk}/fix/", {"note": "x"}, s.NoteSerializer),
@@ -362,8 +483,19 @@ def write_endpoints(world, finding):
 
 
 def absurd_cases():
-    labels = ["walltype create", "walltype patch", "wall create", "wall patch", "opening create", "opening patch",
-              "sealpoint create", "sealpoint patch", "finding create", "finding patch", "finding fix"]
+    labels = [
+        "walltype create",
+        "walltype patch",
+        "wall create",
+        "wall patch",
+        "opening create",
+        "opening patch",
+        "sealpoint create",
+        "sealpoint patch",
+        "finding create",
+        "finding patch",
+        "finding fix",
+    ]
     return labels
 
 
@@ -415,13 +547,17 @@ def test_absurd_numbers_are_refused(label, world, finding, api, settings):
 
 
 def test_raw_nan_tokens_in_json_are_refused(world, api, settings):
-    """Python's json emits bare NaN/Infinity; a strict parser must refuse them (RFC 8259 has no such tokens)."""
+    """Python's json emits bare NaN/Infinity; a strict parser refuses them (RFC 8259 has no such tokens)."""
     before = snapshot(world, settings)
     client = api(world.inspector)
     for token in ("NaN", "Infinity", "-Infinity"):
-        body = ('{"tag": "Z-1", "level": "1", "length": %s, "height": 2.7, "wall_type": %d}'
-                % (token, world.wall_type.pk))
-        response = client.generic("POST", f"/api/jobs/{world.job.pk}/walls/", body, content_type="application/json")
+        body = '{"tag": "Z-1", "level": "1", "length": %s, "height": 2.7, "wall_type": %d}' % (
+            token,
+            world.wall_type.pk,
+        )
+        response = client.generic(
+            "POST", f"/api/jobs/{world.job.pk}/walls/", body, content_type="application/json"
+        )
         assert response.status_code == 400, (token, response.content[:200])
     assert snapshot(world, settings) == before
 
@@ -454,7 +590,8 @@ KNOWN_500 = {
     "{base}/walls/?wall_type=" + HUGE: "qa/api/views.py WallViewSet.get_queryset: same bound on wall_type",
     "{base}/photos/?finding=" + HUGE: "qa/api/photo_views.py PhotoViewSet.get_queryset: same bound",
     "{base}/photos/?wall=" + HUGE: "qa/api/photo_views.py PhotoViewSet.get_queryset: same bound",
-    "{base}/findings/?limit=" + HUGE: "REST_FRAMEWORK pagination: LimitOffsetPagination subclass with max_limit",
+    "{base}/findings/?limit="
+    + HUGE: "REST_FRAMEWORK pagination: LimitOffsetPagination subclass with max_limit",
     "/api/jobs/" + HUGE + "/": "qa/access.py membership(): also catch OverflowError / refuse ids > 2**63-1",
     "/api/jobs/" + HUGE + "/walls/": "qa/access.py membership(): same",
     # PostgreSQL refuses NUL in text (DataError -> 500); SQLite stores it. DRF's CharField already refuses NUL
@@ -463,8 +600,10 @@ KNOWN_500 = {
     "{base}/findings/?level=%00": "qa/api/views.py FindingViewSet: refuse NUL in text filters",
     "{base}/walls/?level=a%00b": "qa/api/views.py WallViewSet: refuse NUL in level",
 }
-QUERY_CASES = [pytest.param(u, marks=pytest.mark.xfail(reason=KNOWN_500[u], strict=False)) if u in KNOWN_500
-               else u for u in QUERY_URLS]
+QUERY_CASES = [
+    pytest.param(u, marks=pytest.mark.xfail(reason=KNOWN_500[u], strict=False)) if u in KNOWN_500 else u
+    for u in QUERY_URLS
+]
 
 
 @pytest.mark.parametrize("template", QUERY_CASES)
@@ -475,12 +614,26 @@ def test_absurd_ids_and_query_parameters_are_not_server_errors(template, world, 
 
 
 def sync_ops(world, finding, field, value):
-    return [{"op_id": str(uuid.uuid4()), "kind": "finding.create", "payload": {
-        "client_id": str(uuid.uuid4()), "wall": world.wall.pk, "kind": "slit", "width": 3, "length": 400,
-        "trade": "electrical", field: value}}]
+    return [
+        {
+            "op_id": str(uuid.uuid4()),
+            "kind": "finding.create",
+            "payload": {
+                "client_id": str(uuid.uuid4()),
+                "wall": world.wall.pk,
+                "kind": "slit",
+                "width": 3,
+                "length": 400,
+                "trade": "electrical",
+                field: value,
+            },
+        }
+    ]
 
 
-@pytest.mark.parametrize("field", ["width", "length", "diameter", "depth", "area", "count", "wall", "seal_point"])
+@pytest.mark.parametrize(
+    "field", ["width", "length", "diameter", "depth", "area", "count", "wall", "seal_point"]
+)
 def test_absurd_numbers_in_sync_operations_are_rejected(field, world, finding, api, settings):
     """The sync endpoint answers 200 per batch; each bad operation is 'rejected' naming the field, nothing
     is applied (the answer itself is kept, so a replay gets the same answer)."""
@@ -493,8 +646,9 @@ def test_absurd_numbers_in_sync_operations_are_rejected(field, world, finding, a
     client = api(world.inspector)
     before = (Finding.objects.count(), Event.objects.count(), backup.job_data(world.other_job))
     for value in ABSURD_JSON:
-        response = client.post(url, {"device_id": "fuzz", "ops": sync_ops(world, finding, field, value)},
-                               format="json")
+        response = client.post(
+            url, {"device_id": "fuzz", "ops": sync_ops(world, finding, field, value)}, format="json"
+        )
         assert response.status_code == 200, (field, value, response.status_code, response.content[:200])
         result = response.json()["results"][0]
         assert result["status"] == "rejected", (field, value, result)

@@ -16,14 +16,29 @@ def url(job) -> str:
 
 
 def op(kind: str, payload: dict, base: int | None = None, **extra) -> dict:
-    return {"op_id": str(uuid.uuid4()), "kind": kind, "base_version": base, "payload": payload,
-            "device_at": "2026-03-02T09:15:00+00:00", **extra}
+    return {
+        "op_id": str(uuid.uuid4()),
+        "kind": kind,
+        "base_version": base,
+        "payload": payload,
+        "device_at": "2026-03-02T09:15:00+00:00",
+        **extra,
+    }
 
 
 def create_op(world, **fields) -> dict:
     point = world.wall.seal_points.first()
-    payload = {"client_id": str(uuid.uuid4()), "wall": world.wall.id, "seal_point": point.id, "kind": "slit",
-               "face": "a", "width": 6, "length": 1500, "trade": "drywall", "note": "bottom track gap"}
+    payload = {
+        "client_id": str(uuid.uuid4()),
+        "wall": world.wall.id,
+        "seal_point": point.id,
+        "kind": "slit",
+        "face": "a",
+        "width": 6,
+        "length": 1500,
+        "trade": "drywall",
+        "note": "bottom track gap",
+    }
     payload.update(fields)
     return op("finding.create", payload)
 
@@ -48,8 +63,11 @@ def test_create_in_job_units_and_event_with_device_time(world, api):
 
 def test_replayed_batch_creates_no_twins_and_returns_same_answers(world, api):
     client = api(world.inspector)
-    ops = [create_op(world), create_op(world, note="second"),
-           op("seal_point.status", {"seal_point": world.wall.seal_points.last().id, "status": "pass"}, base=1)]
+    ops = [
+        create_op(world),
+        create_op(world, note="second"),
+        op("seal_point.status", {"seal_point": world.wall.seal_points.last().id, "status": "pass"}, base=1),
+    ]
     first = send(client, world, ops).data["results"]
     second = send(client, world, ops).data["results"]
     third = send(client, world, ops).data["results"]
@@ -64,9 +82,11 @@ def test_chain_of_edits_from_one_device_is_not_a_conflict(world, api):
     client = api(world.inspector)
     create = create_op(world)
     cid = create["payload"]["client_id"]
-    ops = [create,
-           op("finding.update", {"finding": cid, "changes": {"width": 8}}, base=1),
-           op("finding.update", {"finding": cid, "changes": {"note": "wider"}}, base=2)]
+    ops = [
+        create,
+        op("finding.update", {"finding": cid, "changes": {"width": 8}}, base=1),
+        op("finding.update", {"finding": cid, "changes": {"note": "wider"}}, base=2),
+    ]
     results = send(client, world, ops).data["results"]
     assert [r["status"] for r in results] == ["applied"] * 3
     finding = Finding.objects.get()
@@ -78,10 +98,18 @@ def test_stale_edit_keeps_both_versions_and_inspector_resolves(world, api):
     create = create_op(world)
     cid = create["payload"]["client_id"]
     send(client, world, [create])
-    first = send(client, world, [op("finding.update", {"finding": cid, "changes": {"width": 10}}, base=1)],
-                 device="phone-1").data["results"][0]
-    second = send(client, world, [op("finding.update", {"finding": cid, "changes": {"width": 3}}, base=1)],
-                  device="phone-2").data["results"][0]
+    first = send(
+        client,
+        world,
+        [op("finding.update", {"finding": cid, "changes": {"width": 10}}, base=1)],
+        device="phone-1",
+    ).data["results"][0]
+    second = send(
+        client,
+        world,
+        [op("finding.update", {"finding": cid, "changes": {"width": 3}}, base=1)],
+        device="phone-2",
+    ).data["results"][0]
     assert first["status"] == "applied"
     assert second["status"] == "conflict"
     finding = Finding.objects.get()
@@ -108,12 +136,17 @@ def test_resolve_endpoint_keeps_server(world, api):
     send(client, world, [create, op("finding.update", {"finding": cid, "changes": {"note": "a"}}, base=1)])
     send(client, world, [op("finding.update", {"finding": cid, "changes": {"note": "b"}}, base=1)])
     conflict = Conflict.objects.get()
-    response = client.post(f"/api/jobs/{world.job.id}/conflicts/{conflict.id}/resolve/", {"keep": "server"},
-                           format="json")
+    response = client.post(
+        f"/api/jobs/{world.job.id}/conflicts/{conflict.id}/resolve/", {"keep": "server"}, format="json"
+    )
     assert response.status_code == 200
     assert Finding.objects.get().note == "a"
-    assert api(world.electrician).post(f"/api/jobs/{world.job.id}/conflicts/{conflict.id}/resolve/",
-                                       {"keep": "server"}, format="json").status_code == 403
+    assert (
+        api(world.electrician)
+        .post(f"/api/jobs/{world.job.id}/conflicts/{conflict.id}/resolve/", {"keep": "server"}, format="json")
+        .status_code
+        == 403
+    )
 
 
 def test_crew_fixes_own_trade_only(world, api):
@@ -180,8 +213,12 @@ def test_stale_seal_point_tick_does_not_overwrite(world, api):
     client = api(world.inspector)
     point = world.wall.seal_points.first()
     send(client, world, [op("seal_point.status", {"seal_point": point.id, "status": "pass"}, base=1)])
-    answer = send(client, world, [op("seal_point.status", {"seal_point": point.id, "status": "na"}, base=1)],
-                  device="phone-2").data["results"][0]
+    answer = send(
+        client,
+        world,
+        [op("seal_point.status", {"seal_point": point.id, "status": "na"}, base=1)],
+        device="phone-2",
+    ).data["results"][0]
     assert answer["status"] == "conflict"
     point.refresh_from_db()
     assert point.status == "pass" and point.version == 2

@@ -24,8 +24,14 @@ def plain_jpeg() -> bytes:
 
 @pytest.fixture
 def finding(world):
-    return Finding.objects.create(job=world.job, wall=world.wall, kind="hole", diameter_m=0.02,
-                                  trade="electrical", created_by=world.inspector)
+    return Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        kind="hole",
+        diameter_m=0.02,
+        trade="electrical",
+        created_by=world.inspector,
+    )
 
 
 def base(world) -> str:
@@ -33,14 +39,21 @@ def base(world) -> str:
 
 
 def open_upload(client, world, target, data, **extra):
-    body = {"id": str(uuid.uuid4()), "finding": str(target.client_id), "total_bytes": len(data),
-            "sha256": hashlib.sha256(data).hexdigest(), "captured_at": "2026-03-02T10:00:00+00:00", **extra}
+    body = {
+        "id": str(uuid.uuid4()),
+        "finding": str(target.client_id),
+        "total_bytes": len(data),
+        "sha256": hashlib.sha256(data).hexdigest(),
+        "captured_at": "2026-03-02T10:00:00+00:00",
+        **extra,
+    }
     return client.post(base(world), body, format="json")
 
 
 def put(client, world, photo_id, offset, chunk):
-    return client.put(f"{base(world)}{photo_id}/?offset={offset}", data=chunk,
-                      content_type="application/octet-stream")
+    return client.put(
+        f"{base(world)}{photo_id}/?offset={offset}", data=chunk, content_type="application/octet-stream"
+    )
 
 
 def test_cut_off_upload_resumes_and_is_byte_identical(world, api, finding):
@@ -93,9 +106,14 @@ def test_incomplete_upload_cannot_finish(world, api, finding):
 
 @pytest.mark.parametrize(
     ("extra", "field"),
-    [({"id": "x"}, "id"), ({"total_bytes": 0}, "total_bytes"), ({"sha256": "abc"}, "sha256"),
-     ({"purpose": "selfie"}, "purpose"), ({"finding": str(uuid.uuid4())}, "finding"),
-     ({"captured_at": "noon"}, "captured_at")],
+    [
+        ({"id": "x"}, "id"),
+        ({"total_bytes": 0}, "total_bytes"),
+        ({"sha256": "abc"}, "sha256"),
+        ({"purpose": "selfie"}, "purpose"),
+        ({"finding": str(uuid.uuid4())}, "finding"),
+        ({"captured_at": "noon"}, "captured_at"),
+    ],
 )
 def test_each_rule_is_named(world, api, finding, extra, field):
     answer = open_upload(api(world.inspector), world, finding, b"xx", **extra)

@@ -81,12 +81,24 @@ export async function load(job) {
   return state;
 }
 
+function group(values, key) {
+  const out = new Map();
+  for (const v of values) {
+    if (!out.has(v[key])) out.set(v[key], []);
+    out.get(v[key]).push(v);
+  }
+  return out;
+}
+
+// Indexes by wall, built once per load: the wall list of a big job asks for every wall.
 export function pointsOf(state, wallId) {
-  return [...state.points.values()].filter((p) => p.wall === wallId).sort((a, b) => a.position - b.position);
+  state.pointsByWall ||= group([...state.points.values()].sort((a, b) => a.position - b.position), "wall");
+  return state.pointsByWall.get(wallId) || [];
 }
 
 export function findingsOf(state, wallId) {
-  return [...state.findings.values()].filter((f) => f.wall === wallId && !f.removed);
+  state.findingsByWall ||= group([...state.findings.values()].filter((f) => !f.removed), "wall");
+  return state.findingsByWall.get(wallId) || [];
 }
 
 export function localPhotos(state, findingId) {

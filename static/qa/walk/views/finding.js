@@ -87,7 +87,7 @@ export async function findingView(root, ctx) {
       f.local ? h("span", { class: "chip info" }, "not sent yet") : null),
     h("dl", { class: "facts" }, facts.map(([k, v]) => h("div", {}, h("dt", {}, k), h("dd", {}, String(v))))),
     f.note ? h("p", { class: "note" }, f.note) : null,
-    h("h2", {}, "Photos"), photos,
+    h("h2", {}, "Photos"), local.length || serverPhotos.length ? photos : h("p", { class: "empty" }, "No photo yet."),
     fixForm,
     inspector ? h("div", { class: "form-actions wrap" },
       f.status === "fixed" ? h("button", { type: "button", class: "primary", "data-verify": "", onclick: step("finding.verify") }, "Verify fix") : null,
