@@ -180,9 +180,8 @@ def stc_block(x: np.ndarray, round_tl: bool, ws: Work, label: str, span: np.ndar
     t -= _STC_COL
     umin = t.min(axis=0)
     t -= umin
-    np.minimum(t, 9.0, out=t)
     v = ws.u8[:, :m]
-    np.copyto(v, t, casting="unsafe")
+    np.minimum(t, 9.0, out=v, casting="unsafe")  # capped, then uint8 in the same pass
     # Contour at umin + d, d in [2, 8]: d = 2 keeps every deficiency <= 2 dB (sum <= 32); 8 is the
     # single-band cap. uint8: max(v, d) - v = max(0, d - v) <= 9 per band, sum <= 144 < 256.
     dev = ws.d8[:, :m]
@@ -191,7 +190,7 @@ def stc_block(x: np.ndarray, round_tl: bool, ws: Work, label: str, span: np.ndar
         cand = res + np.uint8(step)
         np.maximum(v, cand, out=dev)
         dev -= v
-        ok = dev.sum(axis=0, dtype=np.uint8) <= 33
+        ok = dev.sum(axis=0, dtype=np.uint8) <= 32
         ok &= cand <= 8
         res = np.where(ok, cand, res)
     umin += res
@@ -204,9 +203,8 @@ def rw_search(u: np.ndarray, decimal: bool, ws: Work) -> np.ndarray:
     umin = u.min(axis=0)
     if decimal:
         u -= umin
-        np.minimum(u, 600.0, out=u)
         v = ws.i16[:, :m]
-        np.copyto(v, u, casting="unsafe")
+        np.minimum(u, 600.0, out=v, casting="unsafe")  # capped, then int16 in the same pass
         # Contour in tenths above umin: 20 keeps every deviation <= 2.0 dB; 320 puts the lowest band at 32.0.
         d = _lift16(v, 20, 320, 320, 1, (256, 128, 64, 32, 16, 8, 4, 2, 1), ws)
         return (umin + d) / 10.0
@@ -214,9 +212,8 @@ def rw_search(u: np.ndarray, decimal: bool, ws: Work) -> np.ndarray:
     lo = np.floor((umin + 20) / 10)
     # Whole dB above lo: v from 10 lo (offset 10 lo - umin is 11..20 tenths), capped where no shift reaches.
     u -= 10.0 * lo
-    np.minimum(u, 600.0, out=u)
     v = ws.i16[:, :m]
-    np.copyto(v, u, casting="unsafe")
+    np.minimum(u, 600.0, out=v, casting="unsafe")  # capped, then int16 in the same pass
     # Upper end: the lowest band alone reaches 32.0, and 16 s - sum(u) <= 32 (all deficient).
     hi = np.minimum(np.floor((umin + 320) / 10), np.floor((320 + usum) / 160)) - lo
     d = _lift16(v, 0, hi.astype(np.int16), 320, 10, (16, 8, 4, 2, 1), ws)

@@ -364,7 +364,7 @@ def _greedy(
                 break
         left = states[i] - amat[best]
         nxt = np.argsort(-key[i])[1:lookahead]
-        guess = [int(j) for j in nxt if np.isfinite(key[i, j])]
+        guess = nxt[np.isfinite(key[i, nxt])].tolist()
     # The last finding: fixing it restores the design exactly (no round trip through tau).
     order.append(int(rank.argmax()))
     after[n - 1], after_tl[n - 1] = designed, tl

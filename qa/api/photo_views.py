@@ -14,6 +14,7 @@ from ..access import membership, require
 from ..choices import PhotoPurpose, Role
 from ..models import Photo
 from . import serializers as s
+from .filters import apply_filters
 from .views import JobScopedMixin, _is_uuid
 
 
@@ -30,12 +31,8 @@ class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMi
 
     def get_queryset(self):
         photos = Photo.objects.filter(job=self.job, removed=False).select_related("uploaded_by")
-        params = self.request.query_params
-        if params.get("finding"):
-            photos = photos.filter(finding_id=params["finding"]) if params["finding"].isdigit() else photos.none()
-        if params.get("wall"):
-            photos = photos.filter(wall_id=params["wall"]) if params["wall"].isdigit() else photos.none()
-        return photos
+        return apply_filters(photos, self.request.query_params,
+                             {"finding": ("finding_id", "id"), "wall": ("wall_id", "id")})
 
     def create(self, request, *args, **kwargs):
         photo_id = request.data.get("id")

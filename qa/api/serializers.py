@@ -7,8 +7,8 @@ import math
 from django.contrib.auth import get_user_model
 from rest_framework import serializers
 
+from ..choices import Role
 from ..impact import curve_errors
-from ..choices import GapKind, Role
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField

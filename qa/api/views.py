@@ -10,11 +10,12 @@ from rest_framework.exceptions import NotFound, ValidationError
 from rest_framework.response import Response
 
 from ..access import membership, require
-from ..converters import ID_REGEX
 from ..choices import FindingStatus, SealStatus
+from ..converters import ID_REGEX
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import TransitionError
 from . import serializers as s
+from .filters import apply_filters
 
 READ_ACTIONS = {"list", "retrieve", "metadata"}
 
@@ -130,12 +131,8 @@ class WallViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMix
                 distinct=True,
             ),
         )
-        params = self.request.query_params
-        if params.get("level"):
-            walls = walls.filter(level=params["level"])
-        if params.get("wall_type"):
-            walls = walls.filter(wall_type_id=params["wall_type"]) if params["wall_type"].isdigit() else walls.none()
-        return walls
+        return apply_filters(walls, self.request.query_params,
+                             {"level": ("level", "text"), "wall_type": ("wall_type_id", "id")})
 
     @transaction.atomic
     def perform_create(self, serializer):
@@ -264,13 +261,10 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
             .select_related("created_by")
             .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
         )
-        params = self.request.query_params
-        for key, field in (("trade", "trade"), ("status", "status"), ("level", "wall__level"), ("kind", "kind")):
-            if params.get(key):
-                findings = findings.filter(**{field: params[key]})
-        if params.get("wall"):
-            findings = findings.filter(wall_id=params["wall"]) if params["wall"].isdigit() else findings.none()
-        return findings
+        return apply_filters(findings, self.request.query_params, {
+            "trade": ("trade", "text"), "status": ("status", "text"), "level": ("wall__level", "text"),
+            "kind": ("kind", "text"), "wall": ("wall_id", "id"),
+        })
 
     def create(self, request, *args, **kwargs):
         client_id = request.data.get("client_id") if hasattr(request.data, "get") else None
@@ -380,9 +374,6 @@ class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSe
 
     def get_queryset(self):
         events = Event.objects.filter(job=self.job).select_related("actor").order_by("-at", "-id")
-        params = self.request.query_params
-        if params.get("target_type"):
-            events = events.filter(target_type=params["target_type"])
-        if params.get("target_id"):
-            events = events.filter(target_id=params["target_id"])
+        events = apply_filters(events, self.request.query_params,
+                               {"target_type": ("target_type", "text"), "target_id": ("target_id", "text")})
         return events

@@ -170,9 +170,7 @@ def main(argv=None) -> int:
     p.add_argument("--batch", type=int, default=10, help="operations per sync batch")
     args = p.parse_args(argv)
     if not os.environ.get("DATABASE_URL", "").startswith("postgres"):
-        print(
-            "note: DATABASE_URL is not PostgreSQL; running on SQLite (writes serialise, not comparable)"
-        )
+        print("note: DATABASE_URL is not PostgreSQL; running on SQLite (writes serialise, not comparable)")
     people = [(f"insp{i:02d}", "inspector", "") for i in range(args.inspectors)]
     people += [(f"own{i:02d}", "owner", "") for i in range(args.owners)]
     print(

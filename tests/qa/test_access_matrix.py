@@ -374,9 +374,8 @@ TABLE: dict[str, dict[str, Rule]] = {
             ok=201,
             body=upload_body,
             known={
-                "crew_other_trade": "qa/uploads.py open_upload: another trade's finding answers 400 (Reject), "
-                "the design "
-                "says 403; fix: raise PermissionDenied (or answer 403) for the trade rule"
+                "crew_other_trade": "qa/uploads.py open_upload: another trade's finding answers 400 "
+                "(Reject), the design says 403; fix: raise PermissionDenied (or answer 403) (trade rule)"
             },
         )
     },

@@ -354,14 +354,12 @@ def test_backup_sqlite_command_copies_a_live_database(tmp_path):
         "DATABASE_URL": "",
         "DJANGO_SETTINGS_MODULE": "qa.settings_test",
     }
-    run = lambda *a: subprocess.run(
-        [sys.executable, "manage.py", *a],
-        cwd=ROOT,
-        env=env,  # noqa: E731
-        capture_output=True,
-        text=True,
-        timeout=120,
-    )
+
+    def run(*a):
+        return subprocess.run(
+            [sys.executable, "manage.py", *a], cwd=ROOT, env=env, capture_output=True, text=True, timeout=120
+        )
+
     assert run("migrate", "-v0").returncode == 0
     live = sqlite3.connect(tmp_path / "db.sqlite3")
     live.execute(

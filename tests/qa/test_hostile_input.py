@@ -551,10 +551,8 @@ def test_raw_nan_tokens_in_json_are_refused(world, api, settings):
     before = snapshot(world, settings)
     client = api(world.inspector)
     for token in ("NaN", "Infinity", "-Infinity"):
-        body = '{"tag": "Z-1", "level": "1", "length": %s, "height": 2.7, "wall_type": %d}' % (
-            token,
-            world.wall_type.pk,
-        )
+        wt = world.wall_type.pk
+        body = f'{{"tag": "Z-1", "level": "1", "length": {token}, "height": 2.7, "wall_type": {wt}}}'
         response = client.generic(
             "POST", f"/api/jobs/{world.job.pk}/walls/", body, content_type="application/json"
         )
