@@ -287,8 +287,8 @@ def _run(
     )
 
 
-# Greedy steps tried per batched rating call (see _greedy); measured best for 10-50 findings.
-LOOKAHEAD = 4
+# Greedy steps tried per batched rating call (see _greedy); 8 measured fastest for 10-50 findings.
+LOOKAHEAD = 8
 
 
 def _nan_zero_sum(a: np.ndarray) -> float:
@@ -311,8 +311,7 @@ def _greedy(
 
     The tie rule (highest rating, then most weighted power, then the earliest
     finding) becomes one static rank per finding, so a step picks with one
-    argmax over ``rating * n + rank``; fixed findings stay in the batch with a
-    zero area (finite values, no re-indexing) and a rank of -inf.
+    argmax over ``rating * n + rank``; each call rates only the open findings.
 
     Speculation, exact by construction: the runner-up order of the last step
     guesses the next picks g1, g2, ...; one call rates every open finding fixed
@@ -331,42 +330,48 @@ def _greedy(
     # rank: ascending in weighted power, and for equal power the earlier finding ranks higher.
     rank = np.empty(n)
     rank[np.lexsort((-np.arange(n), wpow))] = np.arange(n, dtype=float)
-    live = amat.copy()
     left = total.copy()
-    guess: list[int] = []
+    open_ = np.arange(n)  # open findings, ascending
+    guess: list[int] = []  # positions in open_
     step = 0
     while n - step > 1:
         g = guess[: min(lookahead, n - step - 1) - 1]
         m = len(g) + 1
+        k = open_.size
+        rows = amat[open_]
         # states[i]: left with g[0..i-1] fixed, by sequential subtraction (cumsum adds row by row).
-        states = np.cumsum(np.concatenate((left[None, :], -amat[g])), axis=0) if g else left[None, :]
-        buf = states[:, None, :] - live  # (m, n, 21): every open finding fixed next, from each state
+        states = np.cumsum(np.concatenate((left[None, :], -rows[g])), axis=0) if g else left[None, :]
+        buf = states[:, None, :] - rows  # (m, k, 21): every open finding fixed next, from each state
         buf *= inv_s
         np.log10(buf, out=buf)
         buf *= -10.0
-        r = rater(buf.reshape(m * n, N_BANDS)).reshape(m, n)
+        r = rater(buf.reshape(m * k, N_BANDS)).reshape(m, k)
         key = r * n
-        key += rank
+        key += rank[open_]
         if g:
             # In state i the guesses g[0..i-1] are already fixed (their rows may be NaN): never pick them.
             ga = np.asarray(g)
             key[_MASK_ROWS[m], ga[_MASK_COLS[m]]] = -np.inf
-        picks = key.argmax(axis=1)
+        picks = key.argmax(axis=1).tolist()
         for i in range(m):
-            best = int(picks[i])
+            pos = picks[i]
+            best = int(open_[pos])
             order.append(best)
-            after[step] = r[i, best]
-            after_tl[step] = buf[i, best]
-            live[best] = 0.0
-            rank[best] = -np.inf
+            after[step] = r[i, pos]
+            after_tl[step] = buf[i, pos]
             step += 1
-            if i == m - 1 or best != g[i]:
+            if i == m - 1 or pos != g[i]:
                 break
         left = states[i] - amat[best]
         nxt = np.argsort(-key[i])[1:lookahead]
-        guess = nxt[np.isfinite(key[i, nxt])].tolist()
+        nxt = nxt[np.isfinite(key[i, nxt])]
+        # Drop the findings fixed in this call and renumber the guesses to the remaining open ones.
+        keep = np.ones(k, dtype=bool)
+        keep[picks[: i + 1]] = False
+        open_ = open_[keep]
+        guess = (nxt - np.cumsum(~keep)[nxt]).tolist()
     # The last finding: fixing it restores the design exactly (no round trip through tau).
-    order.append(int(rank.argmax()))
+    order.append(int(open_[0]))
     after[n - 1], after_tl[n - 1] = designed, tl
     return order, after, after_tl
 

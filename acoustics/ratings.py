@@ -15,8 +15,11 @@ sum f(s) = sum_i max(0, s - u_i) grows with the contour position s. At
 s = min(u) + 2 dB no band is deficient by more than 2 dB, so f <= 16 * 2 = 32 dB
 holds; at s = min(u) + 8 (ASTM E413 single-band cap) or min(u) + 32 (ISO 717-1:
 the lowest band alone reaches 32) it is the upper end. The largest admissible
-s inside that bracket is found by binary lifting (3 steps for STC, 5 for Rw,
-9 for Rw in 0.1 dB steps), each step one vectorised pass over all curves.
+s inside that bracket is found by binary lifting on the integer shift, each
+step one vectorised pass over all curves: 3 steps for STC; for Rw 3 steps over
+the 7 dB just below the upper end (6 over 6.3 dB in 0.1 dB steps), with a full
+search only for the rare curves whose rating lies lower (see
+``acoustics._kernels``).
 There is no floor: a wall with open gaps may rate below 15 or below zero.
 ISO 717-1 values are first reduced to 0.1 dB and the search runs in integer
 tenths of a decibel, so an unfavourable sum of exactly 32.0 dB is allowed.

@@ -23,6 +23,16 @@ def _media_in_tmp(settings, tmp_path):
     settings.MEDIA_ROOT = tmp_path / "media"
 
 
+@pytest.fixture(autouse=True)
+def _fresh_cache():
+    """Sign-in throttle counters and cached audits live in the cache; no test inherits another's."""
+    from django.core.cache import cache
+
+    cache.clear()
+    yield
+    cache.clear()
+
+
 @dataclass
 class World:
     job: object

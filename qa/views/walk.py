@@ -92,7 +92,7 @@ class ConflictListView(WalkView):
         conflicts = Conflict.objects.filter(finding__job=self.job).select_related("finding", "created_by")
         if request.query_params.get("open") == "1":
             conflicts = conflicts.filter(resolution="")
-        return Response([conflict_data(c, self.job) for c in conflicts])
+        return Response({"conflicts": [conflict_data(c, self.job) for c in conflicts]})
 
 
 @extend_schema(request=OpenApiTypes.OBJECT, responses=OpenApiTypes.OBJECT, tags=["walk"])
