@@ -36,10 +36,11 @@ PEOPLE = [
 
 BATT = {"thickness": 0.089, "flow_resistivity": 10000}
 X16 = "gypsum_15.9_x"
+X16_TWO = {"material": X16, "count": 2}
 WALL_TYPES = [
-    dict(code="W1", name="Staggered wood studs, one layer 15.9 mm fire-rated board each face",
-         construction="staggered_stud", thickness_m=0.172,
-         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
+    dict(code="W1", name="Staggered wood studs, two layers 15.9 mm fire-rated board each face",
+         construction="staggered_stud", thickness_m=0.204,
+         layers={"leaves": [{"layers": [X16_TWO]}, {"layers": [X16_TWO]}],
                  "cavity": {"depth": 0.140, "absorber": BATT},
                  "connection": {"type": "staggered_studs", "spacing": 0.406}}),
     dict(code="W2", name="Double wood studs with 25 mm gap, one layer 15.9 mm fire-rated board each face",
@@ -47,9 +48,10 @@ WALL_TYPES = [
          layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
                  "cavity": {"depth": 0.203, "absorber": BATT},
                  "connection": {"type": "double_studs", "spacing": 0.406}}),
-    dict(code="W3", name="Steel studs 92 mm, resilient channel on the unit face, 15.9 mm fire-rated board",
-         construction="resilient_channel", thickness_m=0.137,
-         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
+    dict(code="W3", name="Steel studs 92 mm, resilient channel on the unit face, 15.9 mm fire-rated board "
+                         "(two layers on the channel)",
+         construction="resilient_channel", thickness_m=0.153,
+         layers={"leaves": [{"layers": [X16]}, {"layers": [X16_TWO]}],
                  "cavity": {"depth": 0.092, "absorber": {"thickness": 0.076, "flow_resistivity": 10000}},
                  "connection": {"type": "steel_stud", "spacing": 0.61,
                                 "resilient_channel": {"leaf": 1, "spacing": 0.61}}}),
@@ -57,25 +59,25 @@ WALL_TYPES = [
          layers={"leaves": [{"layers": ["cmu_190"]}]}),
 ]
 
-# (kind, seal-point key fragment, face, trade, geometry in SI, note)
+# (kind, seal-point key fragment, face, trade, geometry in SI, note). Sizes are typical of what a walk finds.
 FINDING_PATTERNS = [
-    ("slit", "bottom", "a", "drywall", {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
+    ("slit", "bottom-perimeter-a", "a", "drywall", {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
      "Bead missing under the board between two studs."),
-    ("slit", "track", "through", "drywall", {"width_m": 0.008, "length_m": 0.9, "depth_m": 0.17},
+    ("slit", "track", "through", "drywall", {"width_m": 0.003, "length_m": 0.6, "depth_m": 0.14},
      "Track not bedded; daylight under the plate on both faces."),
-    ("hole", "box", "a", "electrical", {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
+    ("hole", "back-box-seal", "a", "electrical", {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
      "Knockouts open on the back-box."),
-    ("back_to_back", "box-spacing", "through", "electrical", {"area_m2": 0.0006, "depth_m": 0.15},
+    ("back_to_back", "box-spacing", "through", "electrical", {"area_m2": 0.0004, "depth_m": 0.15},
      "Boxes back to back in the same stud bay, no pad."),
-    ("ring", "pipe", "through", "plumbing", {"diameter_m": 0.022, "width_m": 0.006, "depth_m": 0.17},
+    ("ring", "pipe", "through", "plumbing", {"diameter_m": 0.022, "width_m": 0.004, "depth_m": 0.15},
      "Annular space around the supply line left open."),
-    ("ring", "duct", "through", "hvac", {"diameter_m": 0.10, "width_m": 0.010, "depth_m": 0.17},
+    ("ring", "duct", "through", "hvac", {"diameter_m": 0.10, "width_m": 0.006, "depth_m": 0.15},
      "Exhaust duct sleeve not packed."),
     ("missing_insulation", "insulation", "through", "insulation", {"area_m2": 0.5},
      "Batt missing in one bay behind the vanity."),
-    ("slit", "head", "through", "drywall", {"width_m": 0.012, "length_m": 2.0, "depth_m": 0.17},
-     "Deflection gap at the head open over two metres."),
-    ("open_area", "cut", "a", "drywall", {"area_m2": 0.004, "depth_m": 0.0159},
+    ("slit", "head", "through", "drywall", {"width_m": 0.004, "length_m": 0.8, "depth_m": 0.15},
+     "Deflection gap at the head open over 800 mm."),
+    ("open_area", "cut-outs", "a", "drywall", {"area_m2": 0.004, "depth_m": 0.0159},
      "Oversized cut-out left by another trade."),
 ]
 DOOR_PATTERN = ("slit", "door-bottom", "through", "doors", {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
@@ -143,8 +145,9 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
     if existing is not None:
         return existing, False
     job = Job.objects.create(name=JOB_NAME, address="418 Quarry Lane, Millbrook (fictional)", units="metric",
-                             rating_scheme="stc", rule_set="Project specification: STC 50 between units, "
-                                                          "STC 55 at the lift shaft (demo)")
+                             rating_scheme="stc", rule_set="Project specification (demo): STC 50 between units and at "
+                                                          "the lift shaft; STC 45 composite for corridor walls "
+                                                          "with their entry doors")
     for username, _first, _last, role, trade in PEOPLE:
         Member.objects.create(job=job, user=users[username], role=role, trade=trade)
     types = {}
@@ -169,18 +172,18 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
                 job=job, wall_type=types["W3"], tag=f"{level}-C{side}", level=level,
                 location=f"corridor wall at units {level}{units_[:2]}–{level}{units_[-2:]}",
                 face_a_label="Corridor", face_b_label=f"Units {level}{units_}",
-                length_m=18.0, height_m=2.74, target_rating=50, rating_scheme="stc"))
+                length_m=18.0, height_m=2.74, target_rating=45, rating_scheme="stc"))
         walls.append(Wall.objects.create(
             job=job, wall_type=types["W4"], tag=f"{level}-L1", level=level,
             location=f"lift shaft beside unit {level}06", face_a_label="Lift shaft", face_b_label=f"Unit {level}06",
-            length_m=2.6, height_m=2.74, target_rating=55, rating_scheme="stc"))
+            length_m=2.6, height_m=2.74, target_rating=50, rating_scheme="stc"))
     for wall in walls:
         wall.add_template_seal_points()
         Event.record(job, inspector, "wall.created", wall, {"tag": wall.tag})
         if "-C" in wall.tag:
             for n in range(3):
                 door = Opening.objects.create(wall=wall, kind="door", label=f"Entry door {n + 1}", width_m=0.91,
-                                              height_m=2.13, rating=30, fire_rated=True)
+                                              height_m=2.13, rating=35, fire_rated=True)
                 Event.record(job, inspector, "opening.created", door, {"wall": wall.tag})
             wall.add_door_seal_points()
 
@@ -197,7 +200,7 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
             moment = start + timedelta(minutes=17 * made)
             finding = Finding.objects.create(
                 job=job, wall=wall, seal_point=point, kind=kind, face=face, trade=trade, note=note,
-                created_by=inspector, device_time=moment, at_edge=frag in ("bottom", "head"),
+                created_by=inspector, device_time=moment, at_edge=any(k in frag for k in ("bottom", "head", "track")),
                 **{k: v for k, v in geometry.items()},
             )
             Event.record(job, inspector, "finding.created", finding, {"wall": wall.tag, "kind": kind, "trade": trade},
@@ -210,13 +213,15 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
                 _store_photo(job, wall, finding, inspector, PhotoPurpose.DEFECT,
                              demo_photo(made, f"{wall.tag} {kind}", moment))
             made += 1
-            # A third of the early findings are already fixed, some of those verified.
-            if made % 3 == 0 and wall.level == "2":
-                finding.mark_fixed(users[trade] if trade in users else inspector, "Sealed and tooled.")
-                if made % 2 == 0:
-                    finding.verify(inspector, "Checked on site.")
-    # Level 2 is walked: every other seal point passes.
-    for point in SealPoint.objects.filter(wall__job=job, wall__level="2", status=SealStatus.UNCHECKED):
+            # Level 2 was walked first: its crews have fixed everything and most fixes are verified.
+            # On level 3 a few fixes wait for the inspector; level 4 was walked today.
+            crew = users.get(trade, inspector)
+            if wall.level == "2" or (wall.level == "3" and made % 3 == 0):
+                finding.mark_fixed(crew, "Sealed and tooled.", device_id="demo-phone-2")
+                if wall.level == "2" and made % 3 != 1:
+                    finding.verify(inspector, "Checked on site.", device_id="demo-phone-1")
+    # Levels 2 and 3 are walked: every seal point without a defect passed.
+    for point in SealPoint.objects.filter(wall__job=job, wall__level__in=("2", "3"), status=SealStatus.UNCHECKED):
         point.status = SealStatus.PASS
         point.save(update_fields=["status"])
     assert Finding.objects.filter(job=job).count() == made

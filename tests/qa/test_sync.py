@@ -136,6 +136,8 @@ def test_resolve_endpoint_keeps_server(world, api):
     send(client, world, [create, op("finding.update", {"finding": cid, "changes": {"note": "a"}}, base=1)])
     send(client, world, [op("finding.update", {"finding": cid, "changes": {"note": "b"}}, base=1)])
     conflict = Conflict.objects.get()
+    listed = client.get(f"/api/jobs/{world.job.id}/conflicts/?open=1").data["conflicts"]
+    assert [c["id"] for c in listed] == [conflict.id]
     response = client.post(
         f"/api/jobs/{world.job.id}/conflicts/{conflict.id}/resolve/", {"keep": "server"}, format="json"
     )
