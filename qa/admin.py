@@ -4,7 +4,19 @@ from __future__ import annotations
 
 from django.contrib import admin
 
-from .models import Conflict, Event, Finding, Job, Member, Opening, Photo, SealPoint, SyncOperation, Wall, WallType
+from .models import (
+    Conflict,
+    Event,
+    Finding,
+    Job,
+    Member,
+    Opening,
+    Photo,
+    SealPoint,
+    SyncOperation,
+    Wall,
+    WallType,
+)
 
 
 class MemberInline(admin.TabularInline):

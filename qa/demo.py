@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import io
 import random
-from datetime import datetime, timedelta, timezone
+from datetime import UTC, datetime, timedelta
 
 from django.contrib.auth import get_user_model
 from django.db import transaction
@@ -38,58 +38,145 @@ BATT = {"thickness": 0.089, "flow_resistivity": 10000}
 X16 = "gypsum_15.9_x"
 X16_TWO = {"material": X16, "count": 2}
 WALL_TYPES = [
-    dict(code="W1", name="Staggered wood studs, two layers 15.9 mm fire-rated board each face",
-         construction="staggered_stud", thickness_m=0.204,
-         layers={"leaves": [{"layers": [X16_TWO]}, {"layers": [X16_TWO]}],
-                 "cavity": {"depth": 0.140, "absorber": BATT},
-                 "connection": {"type": "staggered_studs", "spacing": 0.406}}),
-    dict(code="W2", name="Double wood studs with 25 mm gap, one layer 15.9 mm fire-rated board each face",
-         construction="double_stud", thickness_m=0.235,
-         layers={"leaves": [{"layers": [X16]}, {"layers": [X16]}],
-                 "cavity": {"depth": 0.203, "absorber": BATT},
-                 "connection": {"type": "double_studs", "spacing": 0.406}}),
-    dict(code="W3", name="Steel studs 92 mm, resilient channel on the unit face, 15.9 mm fire-rated board "
-                         "(two layers on the channel)",
-         construction="resilient_channel", thickness_m=0.153,
-         layers={"leaves": [{"layers": [X16]}, {"layers": [X16_TWO]}],
-                 "cavity": {"depth": 0.092, "absorber": {"thickness": 0.076, "flow_resistivity": 10000}},
-                 "connection": {"type": "steel_stud", "spacing": 0.61,
-                                "resilient_channel": {"leaf": 1, "spacing": 0.61}}}),
-    dict(code="W4", name="Concrete block 190 mm, faces sealed", construction="masonry", thickness_m=0.19,
-         layers={"leaves": [{"layers": ["cmu_190"]}]}),
+    dict(
+        code="W1",
+        name="Staggered wood studs, two layers 15.9 mm fire-rated board each face",
+        construction="staggered_stud",
+        thickness_m=0.204,
+        layers={
+            "leaves": [{"layers": [X16_TWO]}, {"layers": [X16_TWO]}],
+            "cavity": {"depth": 0.140, "absorber": BATT},
+            "connection": {"type": "staggered_studs", "spacing": 0.406},
+        },
+    ),
+    dict(
+        code="W2",
+        name="Double wood studs with 25 mm gap, one layer 15.9 mm fire-rated board each face",
+        construction="double_stud",
+        thickness_m=0.235,
+        layers={
+            "leaves": [{"layers": [X16]}, {"layers": [X16]}],
+            "cavity": {"depth": 0.203, "absorber": BATT},
+            "connection": {"type": "double_studs", "spacing": 0.406},
+        },
+    ),
+    dict(
+        code="W3",
+        name="Steel studs 92 mm, resilient channel on the unit face, 15.9 mm fire-rated board "
+        "(two layers on the channel)",
+        construction="resilient_channel",
+        thickness_m=0.153,
+        layers={
+            "leaves": [{"layers": [X16]}, {"layers": [X16_TWO]}],
+            "cavity": {"depth": 0.092, "absorber": {"thickness": 0.076, "flow_resistivity": 10000}},
+            "connection": {
+                "type": "steel_stud",
+                "spacing": 0.61,
+                "resilient_channel": {"leaf": 1, "spacing": 0.61},
+            },
+        },
+    ),
+    dict(
+        code="W4",
+        name="Concrete block 190 mm, faces sealed",
+        construction="masonry",
+        thickness_m=0.19,
+        layers={"leaves": [{"layers": ["cmu_190"]}]},
+    ),
 ]
 
 # (kind, seal-point key fragment, face, trade, geometry in SI, note). Sizes are typical of what a walk finds.
 FINDING_PATTERNS = [
-    ("slit", "bottom-perimeter-a", "a", "drywall", {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
-     "Bead missing under the board between two studs."),
-    ("slit", "track", "through", "drywall", {"width_m": 0.003, "length_m": 0.6, "depth_m": 0.14},
-     "Track not bedded; daylight under the plate on both faces."),
-    ("hole", "back-box-seal", "a", "electrical", {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
-     "Knockouts open on the back-box."),
-    ("back_to_back", "box-spacing", "through", "electrical", {"area_m2": 0.0004, "depth_m": 0.15},
-     "Boxes back to back in the same stud bay, no pad."),
-    ("ring", "pipe", "through", "plumbing", {"diameter_m": 0.022, "width_m": 0.004, "depth_m": 0.15},
-     "Annular space around the supply line left open."),
-    ("ring", "duct", "through", "hvac", {"diameter_m": 0.10, "width_m": 0.006, "depth_m": 0.15},
-     "Exhaust duct sleeve not packed."),
-    ("missing_insulation", "insulation", "through", "insulation", {"area_m2": 0.5},
-     "Batt missing in one bay behind the vanity."),
-    ("slit", "head", "through", "drywall", {"width_m": 0.004, "length_m": 0.8, "depth_m": 0.15},
-     "Deflection gap at the head open over 800 mm."),
-    ("open_area", "cut-outs", "a", "drywall", {"area_m2": 0.004, "depth_m": 0.0159},
-     "Oversized cut-out left by another trade."),
+    (
+        "slit",
+        "bottom-perimeter-a",
+        "a",
+        "drywall",
+        {"width_m": 0.006, "length_m": 1.2, "depth_m": 0.0159},
+        "Bead missing under the board between two studs.",
+    ),
+    (
+        "slit",
+        "track",
+        "through",
+        "drywall",
+        {"width_m": 0.003, "length_m": 0.6, "depth_m": 0.14},
+        "Track not bedded; daylight under the plate on both faces.",
+    ),
+    (
+        "hole",
+        "back-box-seal",
+        "a",
+        "electrical",
+        {"diameter_m": 0.012, "depth_m": 0.0159, "count": 2},
+        "Knockouts open on the back-box.",
+    ),
+    (
+        "back_to_back",
+        "box-spacing",
+        "through",
+        "electrical",
+        {"area_m2": 0.0004, "depth_m": 0.15},
+        "Boxes back to back in the same stud bay, no pad.",
+    ),
+    (
+        "ring",
+        "pipe",
+        "through",
+        "plumbing",
+        {"diameter_m": 0.022, "width_m": 0.004, "depth_m": 0.15},
+        "Annular space around the supply line left open.",
+    ),
+    (
+        "ring",
+        "duct",
+        "through",
+        "hvac",
+        {"diameter_m": 0.10, "width_m": 0.006, "depth_m": 0.15},
+        "Exhaust duct sleeve not packed.",
+    ),
+    (
+        "missing_insulation",
+        "insulation",
+        "through",
+        "insulation",
+        {"area_m2": 0.5},
+        "Batt missing in one bay behind the vanity.",
+    ),
+    (
+        "slit",
+        "head",
+        "through",
+        "drywall",
+        {"width_m": 0.004, "length_m": 0.8, "depth_m": 0.15},
+        "Deflection gap at the head open over 800 mm.",
+    ),
+    (
+        "open_area",
+        "cut-outs",
+        "a",
+        "drywall",
+        {"area_m2": 0.004, "depth_m": 0.0159},
+        "Oversized cut-out left by another trade.",
+    ),
 ]
-DOOR_PATTERN = ("slit", "door-bottom", "through", "doors", {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
-                "Door bottom seal not fitted; 12 mm undercut.")
+DOOR_PATTERN = (
+    "slit",
+    "door-bottom",
+    "through",
+    "doors",
+    {"width_m": 0.012, "length_m": 0.9, "depth_m": 0.045},
+    "Door bottom seal not fitted; 12 mm undercut.",
+)
 
 
 def _users():
     User = get_user_model()
     users = {}
     for username, first, last, _role, _trade in PEOPLE:
-        user, created = User.objects.get_or_create(username=username, defaults={"first_name": first,
-                                                                                "last_name": last})
+        user, created = User.objects.get_or_create(
+            username=username, defaults={"first_name": first, "last_name": last}
+        )
         if created:
             user.set_password(PASSWORD)
             user.save()
@@ -114,7 +201,11 @@ def demo_photo(seed: int, label: str, when: datetime) -> bytes:
     draw.rectangle([stud, 0, stud + 36, floor], fill=(175, 170, 160))
     draw.rectangle([80, floor - 70, 560, floor - 30], fill=(236, 196, 40), outline=(40, 40, 40), width=3)
     for i in range(0, 480, 24):
-        draw.line([(80 + i, floor - 70), (80 + i, floor - 52 if i % 120 else floor - 40)], fill=(30, 30, 30), width=2)
+        draw.line(
+            [(80 + i, floor - 70), (80 + i, floor - 52 if i % 120 else floor - 40)],
+            fill=(30, 30, 30),
+            width=2,
+        )
     draw.rectangle([20, 20, 20 + 14 * len(label), 64], fill=(255, 255, 255))
     draw.text((30, 30), label, fill=(20, 20, 20))
     img = img.filter(ImageFilter.GaussianBlur(0.6))
@@ -126,8 +217,15 @@ def demo_photo(seed: int, label: str, when: datetime) -> bytes:
 
 
 def _store_photo(job, wall, finding, user, purpose, data: bytes) -> Photo:
-    return Photo.objects.store(job=job, wall=wall, finding=finding, user=user, purpose=purpose, data=data,
-                               event={"device_id": "demo-phone-1"})
+    return Photo.objects.store(
+        job=job,
+        wall=wall,
+        finding=finding,
+        user=user,
+        purpose=purpose,
+        data=data,
+        event={"device_id": "demo-phone-1"},
+    )
 
 
 def _point(wall: Wall, fragment: str) -> SealPoint | None:
@@ -144,46 +242,92 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
     existing = Job.objects.filter(name=JOB_NAME).first()
     if existing is not None:
         return existing, False
-    job = Job.objects.create(name=JOB_NAME, address="418 Quarry Lane, Millbrook (fictional)", units="metric",
-                             rating_scheme="stc", rule_set="Project specification (demo): STC 50 between units and at "
-                                                          "the lift shaft; STC 45 composite for corridor walls "
-                                                          "with their entry doors")
+    job = Job.objects.create(
+        name=JOB_NAME,
+        address="418 Quarry Lane, Millbrook (fictional)",
+        units="metric",
+        rating_scheme="stc",
+        rule_set="Project specification (demo): STC 50 between units and at "
+        "the lift shaft; STC 45 composite for corridor walls "
+        "with their entry doors",
+    )
     for username, _first, _last, role, trade in PEOPLE:
         Member.objects.create(job=job, user=users[username], role=role, trade=trade)
     types = {}
     for spec in WALL_TYPES:
-        tl, rating = resolve_wall_type_curve(tl=[], tl_source="predicted", layers=spec["layers"], rating_scheme="stc")
-        types[spec["code"]] = WallType.objects.create(job=job, tl=tl, design_rating=rating, tl_source="predicted",
-                                                      rating_scheme="stc", **spec)
+        tl, rating = resolve_wall_type_curve(
+            tl=[], tl_source="predicted", layers=spec["layers"], rating_scheme="stc"
+        )
+        types[spec["code"]] = WallType.objects.create(
+            job=job, tl=tl, design_rating=rating, tl_source="predicted", rating_scheme="stc", **spec
+        )
     inspector = users["inspector"]
     rng = random.Random(2026)
-    start = datetime(2026, 11, 16, 8, 30, tzinfo=timezone.utc)
+    start = datetime(2026, 11, 16, 8, 30, tzinfo=UTC)
     walls = []
     for level in ("2", "3", "4"):
         for i in range(1, 6):
             code = "W2" if i in (2, 4) else "W1"
-            walls.append(Wall.objects.create(
-                job=job, wall_type=types[code], tag=f"{level}-D{i}", level=level,
-                location=f"between unit {level}0{i} and {level}0{i + 1}",
-                face_a_label=f"Unit {level}0{i}", face_b_label=f"Unit {level}0{i + 1}",
-                length_m=round(rng.uniform(6.5, 9.5), 2), height_m=2.74, target_rating=50, rating_scheme="stc"))
+            walls.append(
+                Wall.objects.create(
+                    job=job,
+                    wall_type=types[code],
+                    tag=f"{level}-D{i}",
+                    level=level,
+                    location=f"between unit {level}0{i} and {level}0{i + 1}",
+                    face_a_label=f"Unit {level}0{i}",
+                    face_b_label=f"Unit {level}0{i + 1}",
+                    length_m=round(rng.uniform(6.5, 9.5), 2),
+                    height_m=2.74,
+                    target_rating=50,
+                    rating_scheme="stc",
+                )
+            )
         for side, units_ in (("N", "01–03"), ("S", "04–06")):
-            walls.append(Wall.objects.create(
-                job=job, wall_type=types["W3"], tag=f"{level}-C{side}", level=level,
-                location=f"corridor wall at units {level}{units_[:2]}–{level}{units_[-2:]}",
-                face_a_label="Corridor", face_b_label=f"Units {level}{units_}",
-                length_m=18.0, height_m=2.74, target_rating=45, rating_scheme="stc"))
-        walls.append(Wall.objects.create(
-            job=job, wall_type=types["W4"], tag=f"{level}-L1", level=level,
-            location=f"lift shaft beside unit {level}06", face_a_label="Lift shaft", face_b_label=f"Unit {level}06",
-            length_m=2.6, height_m=2.74, target_rating=50, rating_scheme="stc"))
+            walls.append(
+                Wall.objects.create(
+                    job=job,
+                    wall_type=types["W3"],
+                    tag=f"{level}-C{side}",
+                    level=level,
+                    location=f"corridor wall at units {level}{units_[:2]}–{level}{units_[-2:]}",
+                    face_a_label="Corridor",
+                    face_b_label=f"Units {level}{units_}",
+                    length_m=18.0,
+                    height_m=2.74,
+                    target_rating=45,
+                    rating_scheme="stc",
+                )
+            )
+        walls.append(
+            Wall.objects.create(
+                job=job,
+                wall_type=types["W4"],
+                tag=f"{level}-L1",
+                level=level,
+                location=f"lift shaft beside unit {level}06",
+                face_a_label="Lift shaft",
+                face_b_label=f"Unit {level}06",
+                length_m=2.6,
+                height_m=2.74,
+                target_rating=50,
+                rating_scheme="stc",
+            )
+        )
     for wall in walls:
         wall.add_template_seal_points()
         Event.record(job, inspector, "wall.created", wall, {"tag": wall.tag})
         if "-C" in wall.tag:
             for n in range(3):
-                door = Opening.objects.create(wall=wall, kind="door", label=f"Entry door {n + 1}", width_m=0.91,
-                                              height_m=2.13, rating=35, fire_rated=True)
+                door = Opening.objects.create(
+                    wall=wall,
+                    kind="door",
+                    label=f"Entry door {n + 1}",
+                    width_m=0.91,
+                    height_m=2.13,
+                    rating=35,
+                    fire_rated=True,
+                )
                 Event.record(job, inspector, "opening.created", door, {"wall": wall.tag})
             wall.add_door_seal_points()
 
@@ -199,19 +343,40 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
             point = _point(wall, frag)
             moment = start + timedelta(minutes=17 * made)
             finding = Finding.objects.create(
-                job=job, wall=wall, seal_point=point, kind=kind, face=face, trade=trade, note=note,
-                created_by=inspector, device_time=moment, at_edge=any(k in frag for k in ("bottom", "head", "track")),
+                job=job,
+                wall=wall,
+                seal_point=point,
+                kind=kind,
+                face=face,
+                trade=trade,
+                note=note,
+                created_by=inspector,
+                device_time=moment,
+                at_edge=any(k in frag for k in ("bottom", "head", "track")),
                 **{k: v for k, v in geometry.items()},
             )
-            Event.record(job, inspector, "finding.created", finding, {"wall": wall.tag, "kind": kind, "trade": trade},
-                         device_at=moment, device_id="demo-phone-1")
+            Event.record(
+                job,
+                inspector,
+                "finding.created",
+                finding,
+                {"wall": wall.tag, "kind": kind, "trade": trade},
+                device_at=moment,
+                device_id="demo-phone-1",
+            )
             if point is not None:
                 point.status = SealStatus.DEFECT
                 point.save(update_fields=["status"])
             if photo_budget > 0:
                 photo_budget -= 1
-                _store_photo(job, wall, finding, inspector, PhotoPurpose.DEFECT,
-                             demo_photo(made, f"{wall.tag} {kind}", moment))
+                _store_photo(
+                    job,
+                    wall,
+                    finding,
+                    inspector,
+                    PhotoPurpose.DEFECT,
+                    demo_photo(made, f"{wall.tag} {kind}", moment),
+                )
             made += 1
             # Level 2 was walked first: its crews have fixed everything and most fixes are verified.
             # On level 3 a few fixes wait for the inspector; level 4 was walked today.
@@ -221,7 +386,9 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
                 if wall.level == "2" and made % 3 != 1:
                     finding.verify(inspector, "Checked on site.", device_id="demo-phone-1")
     # Levels 2 and 3 are walked: every seal point without a defect passed.
-    for point in SealPoint.objects.filter(wall__job=job, wall__level__in=("2", "3"), status=SealStatus.UNCHECKED):
+    for point in SealPoint.objects.filter(
+        wall__job=job, wall__level__in=("2", "3"), status=SealStatus.UNCHECKED
+    ):
         point.status = SealStatus.PASS
         point.save(update_fields=["status"])
     assert Finding.objects.filter(job=job).count() == made

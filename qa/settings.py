@@ -174,7 +174,7 @@ else:
 
 STORAGES = {
     "default": _media_backend,
-    "staticfiles": {"BACKEND": "whitenoise.storage.CompressedManifestStaticFilesStorage"},
+    "staticfiles": {"BACKEND": "qa.storage.StaticStorage"},
 }
 
 # Photos: phones send up to ~12 MB; anything larger is refused before Pillow sees it.

@@ -10,5 +10,9 @@ from .settings import STORAGES  # noqa: E402
 
 STORAGES = {**STORAGES, "staticfiles": {"BACKEND": "django.contrib.staticfiles.storage.StaticFilesStorage"}}
 PASSWORD_HASHERS = ["django.contrib.auth.hashers.MD5PasswordHasher"]  # fast user creation in fixtures
-CACHES = {"default": {"BACKEND": "django.core.cache.backends.locmem.LocMemCache",
-                      "OPTIONS": {"MAX_ENTRIES": 100_000}}}
+CACHES = {
+    "default": {
+        "BACKEND": "django.core.cache.backends.locmem.LocMemCache",
+        "OPTIONS": {"MAX_ENTRIES": 100_000},
+    }
+}

@@ -82,17 +82,43 @@ def world(db):
     Member.objects.create(job=job, user=drywaller, role="crew", trade="drywall")
     Member.objects.create(job=job, user=owner, role="owner")
     Member.objects.create(job=other_job, user=outsider, role="inspector")
-    wall_type = WallType.objects.create(job=job, code="T1", name="Test stud wall", construction="wood_stud",
-                                        tl=FLAT_50, tl_source="lab", design_rating=50, thickness_m=0.12)
-    wall = Wall.objects.create(job=job, wall_type=wall_type, tag="2-01", level="2", location="between 201 and 202",
-                               length_m=6.0, height_m=2.7, target_rating=50)
+    wall_type = WallType.objects.create(
+        job=job,
+        code="T1",
+        name="Test stud wall",
+        construction="wood_stud",
+        tl=FLAT_50,
+        tl_source="lab",
+        design_rating=50,
+        thickness_m=0.12,
+    )
+    wall = Wall.objects.create(
+        job=job,
+        wall_type=wall_type,
+        tag="2-01",
+        level="2",
+        location="between 201 and 202",
+        length_m=6.0,
+        height_m=2.7,
+        target_rating=50,
+    )
     wall.add_template_seal_points()
-    other_type = WallType.objects.create(job=other_job, code="X1", name="Other", construction="steel_stud",
-                                         tl=FLAT_50, tl_source="lab", thickness_m=0.12)
-    other_wall = Wall.objects.create(job=other_job, wall_type=other_type, tag="9-01", level="9",
-                                     length_m=5.0, height_m=2.7)
+    other_type = WallType.objects.create(
+        job=other_job,
+        code="X1",
+        name="Other",
+        construction="steel_stud",
+        tl=FLAT_50,
+        tl_source="lab",
+        thickness_m=0.12,
+    )
+    other_wall = Wall.objects.create(
+        job=other_job, wall_type=other_type, tag="9-01", level="9", length_m=5.0, height_m=2.7
+    )
     other_wall.add_template_seal_points()
-    return World(job, other_job, inspector, electrician, drywaller, owner, outsider, wall_type, wall, other_wall)
+    return World(
+        job, other_job, inspector, electrician, drywaller, owner, outsider, wall_type, wall, other_wall
+    )
 
 
 @pytest.fixture
@@ -113,11 +139,22 @@ def api():
 
 CHROMIUM = os.environ.get("CHROMIUM", "/usr/bin/chromium")
 CHROMIUM_ARGS = [
-    "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
-    "--disable-sync", "--no-first-run", "--disable-quic", "--disable-dev-shm-usage",
+    "--no-sandbox",
+    "--disable-gpu",
+    "--disable-background-networking",
+    "--disable-component-update",
+    "--disable-sync",
+    "--no-first-run",
+    "--disable-quic",
+    "--disable-dev-shm-usage",
     "--host-resolver-rules=MAP * ~NOTFOUND, EXCLUDE localhost, EXCLUDE 127.0.0.1",
 ]
-PHONE = {"viewport": {"width": 390, "height": 844}, "device_scale_factor": 2, "is_mobile": True, "has_touch": True}
+PHONE = {
+    "viewport": {"width": 390, "height": 844},
+    "device_scale_factor": 2,
+    "is_mobile": True,
+    "has_touch": True,
+}
 
 
 def chromium_available() -> bool:

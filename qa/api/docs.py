@@ -18,11 +18,13 @@ def docs_page(request):
         for method, op in methods.items():
             if method.startswith("x-") or method == "parameters":
                 continue
-            operations.append({
-                "method": method.upper(),
-                "path": route,
-                "summary": op.get("summary") or (op.get("description") or "").split("\n")[0],
-                "params": [p["name"] for p in op.get("parameters", []) if p.get("in") == "query"],
-                "tag": (op.get("tags") or ["api"])[0],
-            })
+            operations.append(
+                {
+                    "method": method.upper(),
+                    "path": route,
+                    "summary": op.get("summary") or (op.get("description") or "").split("\n")[0],
+                    "params": [p["name"] for p in op.get("parameters", []) if p.get("in") == "query"],
+                    "tag": (op.get("tags") or ["api"])[0],
+                }
+            )
     return render(request, "qa/api_docs.html", {"operations": operations, "info": schema.get("info", {})})

@@ -18,8 +18,14 @@ from .filters import apply_filters
 from .views import JobScopedMixin, _is_uuid
 
 
-class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                   mixins.DestroyModelMixin, viewsets.GenericViewSet):
+class PhotoViewSet(
+    JobScopedMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
     """Photos of a job. Upload as multipart with ``image``; the photo ``id`` is made on the device,
     so uploading the same id again returns the stored photo instead of a twin."""
 
@@ -31,8 +37,9 @@ class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMi
 
     def get_queryset(self):
         photos = Photo.objects.filter(job=self.job, removed=False).select_related("uploaded_by")
-        return apply_filters(photos, self.request.query_params,
-                             {"finding": ("finding_id", "id"), "wall": ("wall_id", "id")})
+        return apply_filters(
+            photos, self.request.query_params, {"finding": ("finding_id", "id"), "wall": ("wall_id", "id")}
+        )
 
     def create(self, request, *args, **kwargs):
         photo_id = request.data.get("id")
@@ -54,8 +61,14 @@ class PhotoViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMi
             purpose = PhotoPurpose.FIX
         try:
             photo = Photo.objects.store(
-                job=self.job, wall=data["wall"], finding=finding, user=request.user, purpose=purpose,
-                data=data["image"].read(), photo_id=data.get("id"), captured_at=data.get("captured_at"),
+                job=self.job,
+                wall=data["wall"],
+                finding=finding,
+                user=request.user,
+                purpose=purpose,
+                data=data["image"].read(),
+                photo_id=data.get("id"),
+                captured_at=data.get("captured_at"),
                 caption=data.get("caption", ""),
             )
         except IntegrityError:

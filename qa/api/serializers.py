@@ -13,8 +13,15 @@ from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wal
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField
 
-SI_TO_API = {"width_m": "width", "length_m": "length", "diameter_m": "diameter", "depth_m": "depth",
-             "area_m2": "area", "count": "count", "face": "face"}
+SI_TO_API = {
+    "width_m": "width",
+    "length_m": "length",
+    "diameter_m": "diameter",
+    "depth_m": "depth",
+    "area_m2": "area",
+    "count": "count",
+    "face": "face",
+}
 
 
 class CurveField(serializers.ListField):
@@ -45,7 +52,17 @@ class JobSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = Job
-        fields = ["id", "name", "address", "units", "rating_scheme", "rule_set", "role", "trade", "updated_at"]
+        fields = [
+            "id",
+            "name",
+            "address",
+            "units",
+            "rating_scheme",
+            "rule_set",
+            "role",
+            "trade",
+            "updated_at",
+        ]
         read_only_fields = ["id", "role", "trade", "updated_at"]
 
     def _member(self, job):
@@ -97,8 +114,21 @@ class WallTypeSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = WallType
-        fields = ["id", "code", "name", "construction", "layers", "tl", "tl_source", "lab_reference",
-                  "design_rating", "rating_scheme", "thickness", "fire_rated", "updated_at"]
+        fields = [
+            "id",
+            "code",
+            "name",
+            "construction",
+            "layers",
+            "tl",
+            "tl_source",
+            "lab_reference",
+            "design_rating",
+            "rating_scheme",
+            "thickness",
+            "fire_rated",
+            "updated_at",
+        ]
         read_only_fields = ["id", "design_rating", "updated_at"]
 
     def validate_code(self, code):
@@ -112,8 +142,10 @@ class WallTypeSerializer(serializers.ModelSerializer):
     def validate(self, attrs):
         from ..impact import resolve_wall_type_curve
 
-        merged = {f: attrs.get(f, getattr(self.instance, f, None)) for f in ("tl", "tl_source", "layers",
-                                                                             "rating_scheme")}
+        merged = {
+            f: attrs.get(f, getattr(self.instance, f, None))
+            for f in ("tl", "tl_source", "layers", "rating_scheme")
+        }
         try:
             attrs["tl"], attrs["design_rating"] = resolve_wall_type_curve(**merged)
         except ValueError as exc:
@@ -133,9 +165,24 @@ class WallSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = Wall
-        fields = ["id", "tag", "level", "location", "face_a_label", "face_b_label", "length", "height",
-                  "target_rating", "rating_scheme", "wall_type", "version", "seal_points_total",
-                  "seal_points_checked", "findings_open", "updated_at"]
+        fields = [
+            "id",
+            "tag",
+            "level",
+            "location",
+            "face_a_label",
+            "face_b_label",
+            "length",
+            "height",
+            "target_rating",
+            "rating_scheme",
+            "wall_type",
+            "version",
+            "seal_points_total",
+            "seal_points_checked",
+            "findings_open",
+            "updated_at",
+        ]
         read_only_fields = ["id", "version", "updated_at"]
 
     def __init__(self, *args, **kwargs):
@@ -183,16 +230,33 @@ class OpeningSerializer(serializers.ModelSerializer):
 class SealPointSerializer(serializers.ModelSerializer):
     class Meta:
         model = SealPoint
-        fields = ["id", "wall", "template_key", "label", "face", "trade", "correct", "usual_defect", "gap_kind",
-                  "gap", "at_edge", "caution", "position", "status", "checked_at", "version"]
+        fields = [
+            "id",
+            "wall",
+            "template_key",
+            "label",
+            "face",
+            "trade",
+            "correct",
+            "usual_defect",
+            "gap_kind",
+            "gap",
+            "at_edge",
+            "caution",
+            "position",
+            "status",
+            "checked_at",
+            "version",
+        ]
         read_only_fields = ["id", "wall", "template_key", "checked_at", "version", "gap"]
 
 
 class FindingSerializer(serializers.ModelSerializer):
     client_id = serializers.UUIDField(required=False)
     wall = serializers.PrimaryKeyRelatedField(queryset=Wall.objects.none())
-    seal_point = serializers.PrimaryKeyRelatedField(queryset=SealPoint.objects.none(), allow_null=True,
-                                                    required=False)
+    seal_point = serializers.PrimaryKeyRelatedField(
+        queryset=SealPoint.objects.none(), allow_null=True, required=False
+    )
     width = UnitField("gap", source="width_m", required=False, allow_null=True)
     length = UnitField("gap", source="length_m", required=False, allow_null=True)
     diameter = UnitField("gap", source="diameter_m", required=False, allow_null=True)
@@ -205,11 +269,45 @@ class FindingSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = Finding
-        fields = ["id", "client_id", "wall", "seal_point", "kind", "face", "width", "length", "diameter", "depth",
-                  "area", "fill", "at_edge", "count", "trade", "note", "status", "fix_note", "version",
-                  "created_by", "created_at", "updated_at", "device_time", "fixed_at", "verified_at", "photos"]
-        read_only_fields = ["id", "status", "fix_note", "version", "created_by", "created_at", "updated_at",
-                            "fixed_at", "verified_at"]
+        fields = [
+            "id",
+            "client_id",
+            "wall",
+            "seal_point",
+            "kind",
+            "face",
+            "width",
+            "length",
+            "diameter",
+            "depth",
+            "area",
+            "fill",
+            "at_edge",
+            "count",
+            "trade",
+            "note",
+            "status",
+            "fix_note",
+            "version",
+            "created_by",
+            "created_at",
+            "updated_at",
+            "device_time",
+            "fixed_at",
+            "verified_at",
+            "photos",
+        ]
+        read_only_fields = [
+            "id",
+            "status",
+            "fix_note",
+            "version",
+            "created_by",
+            "created_at",
+            "updated_at",
+            "fixed_at",
+            "verified_at",
+        ]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
@@ -247,7 +345,9 @@ class FindingSerializer(serializers.ModelSerializer):
 class PhotoSerializer(serializers.ModelSerializer):
     id = serializers.UUIDField(required=False)
     image = serializers.FileField(write_only=True)
-    finding = serializers.PrimaryKeyRelatedField(queryset=Finding.objects.none(), allow_null=True, required=False)
+    finding = serializers.PrimaryKeyRelatedField(
+        queryset=Finding.objects.none(), allow_null=True, required=False
+    )
     wall = serializers.PrimaryKeyRelatedField(queryset=Wall.objects.none(), required=False)
     url = serializers.SerializerMethodField()
     thumbnail_url = serializers.SerializerMethodField()
@@ -255,11 +355,35 @@ class PhotoSerializer(serializers.ModelSerializer):
 
     class Meta:
         model = Photo
-        fields = ["id", "finding", "wall", "purpose", "image", "caption", "captured_at", "width", "height",
-                  "bytes", "sha256", "received_sha256", "original_format", "uploaded_by", "uploaded_at", "url",
-                  "thumbnail_url"]
-        read_only_fields = ["width", "height", "bytes", "sha256", "received_sha256", "original_format",
-                            "uploaded_by", "uploaded_at"]
+        fields = [
+            "id",
+            "finding",
+            "wall",
+            "purpose",
+            "image",
+            "caption",
+            "captured_at",
+            "width",
+            "height",
+            "bytes",
+            "sha256",
+            "received_sha256",
+            "original_format",
+            "uploaded_by",
+            "uploaded_at",
+            "url",
+            "thumbnail_url",
+        ]
+        read_only_fields = [
+            "width",
+            "height",
+            "bytes",
+            "sha256",
+            "received_sha256",
+            "original_format",
+            "uploaded_by",
+            "uploaded_at",
+        ]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)
@@ -304,8 +428,9 @@ class NoteSerializer(serializers.Serializer):
     """Body of a lifecycle step (fix, verify, reopen, remove)."""
 
     note = serializers.CharField(max_length=2000, required=False, allow_blank=True, default="")
-    version = serializers.IntegerField(required=False, min_value=1,
-                                       help_text="The version the client saw; a stale one answers 409.")
+    version = serializers.IntegerField(
+        required=False, min_value=1, help_text="The version the client saw; a stale one answers 409."
+    )
 
 
 __all__ = ["FiniteFloatField"]

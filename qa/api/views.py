@@ -59,8 +59,11 @@ class JobViewSet(viewsets.ReadOnlyModelViewSet):
 
     def get_serializer_context(self):
         context = super().get_serializer_context()
-        members = Member.objects.filter(user=self.request.user, active=True) if self.request.user.is_authenticated \
+        members = (
+            Member.objects.filter(user=self.request.user, active=True)
+            if self.request.user.is_authenticated
             else []
+        )
         context["members"] = {m.job_id: m for m in members}
         return context
 
@@ -69,8 +72,14 @@ class JobViewSet(viewsets.ReadOnlyModelViewSet):
         return super().retrieve(request, *args, **kwargs)
 
 
-class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                    mixins.UpdateModelMixin, viewsets.GenericViewSet):
+class MemberViewSet(
+    JobScopedMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    viewsets.GenericViewSet,
+):
     """Members of a job. Inspectors manage them; removing a member deactivates it."""
 
     serializer_class = s.MemberSerializer
@@ -88,11 +97,19 @@ class MemberViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelM
     @transaction.atomic
     def perform_update(self, serializer):
         member = serializer.save()
-        self.record("member.changed", member, {"role": member.role, "trade": member.trade, "active": member.active})
+        self.record(
+            "member.changed", member, {"role": member.role, "trade": member.trade, "active": member.active}
+        )
 
 
-class WallTypeViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                      mixins.UpdateModelMixin, viewsets.GenericViewSet):
+class WallTypeViewSet(
+    JobScopedMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    viewsets.GenericViewSet,
+):
     serializer_class = s.WallTypeSerializer
     queryset = WallType.objects.none()  # for the schema only; get_queryset scopes to the job
 
@@ -110,29 +127,46 @@ class WallTypeViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveMode
         self.record("walltype.changed", wall_type, {"fields": sorted(serializer.validated_data)})
 
 
-class WallViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                  mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+class WallViewSet(
+    JobScopedMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
     """Walls of a job, filterable by ``level`` and ``wall_type``. Creating a wall creates its seal points."""
 
     serializer_class = s.WallSerializer
     queryset = Wall.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
-        walls = Wall.objects.live().filter(job=self.job).annotate(
-            seal_points_total=Count("seal_points", filter=Q(seal_points__removed=False), distinct=True),
-            seal_points_checked=Count(
-                "seal_points",
-                filter=Q(seal_points__removed=False) & ~Q(seal_points__status=SealStatus.UNCHECKED),
-                distinct=True,
-            ),
-            findings_open=Count(
-                "findings",
-                filter=Q(findings__removed=False, findings__status__in=[FindingStatus.OPEN, FindingStatus.REOPENED]),
-                distinct=True,
-            ),
+        walls = (
+            Wall.objects.live()
+            .filter(job=self.job)
+            .annotate(
+                seal_points_total=Count("seal_points", filter=Q(seal_points__removed=False), distinct=True),
+                seal_points_checked=Count(
+                    "seal_points",
+                    filter=Q(seal_points__removed=False) & ~Q(seal_points__status=SealStatus.UNCHECKED),
+                    distinct=True,
+                ),
+                findings_open=Count(
+                    "findings",
+                    filter=Q(
+                        findings__removed=False,
+                        findings__status__in=[FindingStatus.OPEN, FindingStatus.REOPENED],
+                    ),
+                    distinct=True,
+                ),
+            )
         )
-        return apply_filters(walls, self.request.query_params,
-                             {"level": ("level", "text"), "wall_type": ("wall_type_id", "id")})
+        return apply_filters(
+            walls,
+            self.request.query_params,
+            {"level": ("level", "text"), "wall_type": ("wall_type_id", "id")},
+        )
 
     @transaction.atomic
     def perform_create(self, serializer):
@@ -172,8 +206,15 @@ class WallChildMixin(JobScopedMixin):
         return context
 
 
-class OpeningViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                     mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+class OpeningViewSet(
+    WallChildMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
     serializer_class = s.OpeningSerializer
     queryset = Opening.objects.none()  # for the schema only; get_queryset scopes to the job
 
@@ -199,8 +240,15 @@ class OpeningViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModel
         self.record("opening.removed", opening, {"wall": self.wall.tag})
 
 
-class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                       mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+class SealPointViewSet(
+    WallChildMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
     """Seal points of a wall. PATCH ``status`` to tick one; DELETE removes it (kept in the record)."""
 
     serializer_class = s.SealPointSerializer
@@ -211,7 +259,9 @@ class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveMod
 
     @transaction.atomic
     def perform_create(self, serializer):
-        position = (self.get_queryset().order_by("-position").values_list("position", flat=True).first() or 0) + 1
+        position = (
+            self.get_queryset().order_by("-position").values_list("position", flat=True).first() or 0
+        ) + 1
         point = serializer.save(wall=self.wall, position=serializer.validated_data.get("position", position))
         self.record("sealpoint.added", point, {"label": point.label})
 
@@ -239,8 +289,15 @@ class SealPointViewSet(WallChildMixin, mixins.ListModelMixin, mixins.RetrieveMod
         self.record("sealpoint.removed", point, {"label": point.label})
 
 
-class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModelMixin, mixins.CreateModelMixin,
-                     mixins.UpdateModelMixin, mixins.DestroyModelMixin, viewsets.GenericViewSet):
+class FindingViewSet(
+    JobScopedMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.UpdateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
     """Findings of a job, filterable by ``wall``, ``level``, ``trade`` and ``status``.
 
     Crew members see every finding of the job but may act only on their own trade's.
@@ -261,10 +318,17 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
             .select_related("created_by")
             .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
         )
-        return apply_filters(findings, self.request.query_params, {
-            "trade": ("trade", "text"), "status": ("status", "text"), "level": ("wall__level", "text"),
-            "kind": ("kind", "text"), "wall": ("wall_id", "id"),
-        })
+        return apply_filters(
+            findings,
+            self.request.query_params,
+            {
+                "trade": ("trade", "text"),
+                "status": ("status", "text"),
+                "level": ("wall__level", "text"),
+                "kind": ("kind", "text"),
+                "wall": ("wall_id", "id"),
+            },
+        )
 
     def create(self, request, *args, **kwargs):
         client_id = request.data.get("client_id") if hasattr(request.data, "get") else None
@@ -297,8 +361,11 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
         if point is not None and point.status != SealStatus.DEFECT:
             point.status, point.version = SealStatus.DEFECT, point.version + 1
             point.save(update_fields=["status", "version"])
-        self.record("finding.created", finding, {"wall": finding.wall.tag, "kind": finding.kind,
-                                                 "trade": finding.trade})
+        self.record(
+            "finding.created",
+            finding,
+            {"wall": finding.wall.tag, "kind": finding.kind, "trade": finding.trade},
+        )
 
     def perform_update(self, serializer):
         seen = self.request.data.get("version") if hasattr(self.request.data, "get") else None
@@ -308,8 +375,11 @@ class FindingViewSet(JobScopedMixin, mixins.ListModelMixin, mixins.RetrieveModel
                 raise _Stale(finding)
             serializer.instance = finding
             finding = serializer.save(version=finding.version + 1)
-            self.record("finding.edited", finding, {"fields": sorted(serializer.validated_data),
-                                                    "version": finding.version})
+            self.record(
+                "finding.edited",
+                finding,
+                {"fields": sorted(serializer.validated_data), "version": finding.version},
+            )
 
     @transaction.atomic
     def perform_destroy(self, finding):
@@ -374,6 +444,9 @@ class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSe
 
     def get_queryset(self):
         events = Event.objects.filter(job=self.job).select_related("actor").order_by("-at", "-id")
-        events = apply_filters(events, self.request.query_params,
-                               {"target_type": ("target_type", "text"), "target_id": ("target_id", "text")})
+        events = apply_filters(
+            events,
+            self.request.query_params,
+            {"target_type": ("target_type", "text"), "target_id": ("target_id", "text")},
+        )
         return events

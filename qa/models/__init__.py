@@ -7,4 +7,17 @@ from .photos import Photo
 from .uploads import PhotoUpload
 from .walls import Opening, SealPoint, Wall, WallType
 
-__all__ = ["Conflict", "Event", "Finding", "Job", "Member", "Opening", "Photo", "PhotoUpload", "SealPoint", "SyncOperation", "Wall", "WallType"]
+__all__ = [
+    "Conflict",
+    "Event",
+    "Finding",
+    "Job",
+    "Member",
+    "Opening",
+    "Photo",
+    "PhotoUpload",
+    "SealPoint",
+    "SyncOperation",
+    "Wall",
+    "WallType",
+]

@@ -49,8 +49,9 @@ class Event(models.Model):
         raise AppendOnlyError("events are append-only")
 
     @classmethod
-    def record(cls, job, actor, verb: str, target, data: dict | None = None, *, device_at=None,
-               device_id: str = "") -> Event:
+    def record(
+        cls, job, actor, verb: str, target, data: dict | None = None, *, device_at=None, device_id: str = ""
+    ) -> Event:
         return cls.objects.create(
             job=job,
             actor=actor if getattr(actor, "is_authenticated", False) else None,

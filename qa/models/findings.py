@@ -7,13 +7,13 @@ from django.conf import settings
 from django.db import models
 from django.utils import timezone
 
-from ..choices import AREA_KINDS, Face, FindingStatus, Fill, GapKind, Trade
+from ..choices import AREA_KINDS, Face, Fill, FindingStatus, GapKind, Trade
 from .jobs import Job
 from .walls import SealPoint, Wall
 
 # Sanity bounds on recorded geometry, SI. A value outside them is a typo or a unit mix-up.
-MIN_GAP_M = 1e-5          # 0.01 mm: below a hairline crack
-MAX_DEPTH_M = 1.0         # no partition in this trade is a metre thick
+MIN_GAP_M = 1e-5  # 0.01 mm: below a hairline crack
+MAX_DEPTH_M = 1.0  # no partition in this trade is a metre thick
 MAX_HOLE_DIAMETER_M = 0.6  # larger than this, record an open area
 MAX_COUNT = 500
 
@@ -75,8 +75,11 @@ def geometry_errors(kind: str, face: str, dims: dict, wall: Wall) -> dict[str, s
     if depth is not None and depth > MAX_DEPTH_M:
         errors["depth_m"] = "is over 1 m; check the units"
     area = dims.get("area_m2")
-    if (kind in AREA_KINDS or kind in (GapKind.OPEN_AREA, GapKind.BACK_TO_BACK)) and area is not None \
-            and area > wall.area_m2:
+    if (
+        (kind in AREA_KINDS or kind in (GapKind.OPEN_AREA, GapKind.BACK_TO_BACK))
+        and area is not None
+        and area > wall.area_m2
+    ):
         errors["area_m2"] = "is larger than the wall"
     return errors
 
@@ -93,7 +96,10 @@ class FindingQuerySet(models.QuerySet):
 
 
 class Finding(models.Model):
-    """One recorded defect at a seal point. Geometry in SI; lifecycle open → fixed → verified (or reopened)."""
+    """One recorded defect at a seal point.
+
+    Geometry in SI; lifecycle open → fixed → verified (or reopened).
+    """
 
     client_id = models.UUIDField(unique=True, default=uuid.uuid4, editable=False)
     job = models.ForeignKey(Job, on_delete=models.CASCADE, related_name="findings")
@@ -106,7 +112,9 @@ class Finding(models.Model):
     width_m = models.FloatField(null=True, blank=True)
     length_m = models.FloatField(null=True, blank=True)
     diameter_m = models.FloatField(null=True, blank=True)
-    depth_m = models.FloatField(null=True, blank=True, help_text="Along the air path; default the board or wall.")
+    depth_m = models.FloatField(
+        null=True, blank=True, help_text="Along the air path; default the board or wall."
+    )
     area_m2 = models.FloatField(null=True, blank=True)
     fill = models.CharField(max_length=8, choices=Fill.choices, default=Fill.NONE)
     at_edge = models.BooleanField(default=False)
@@ -210,18 +218,25 @@ class SyncOperation(models.Model):
     class Meta:
         ordering = ["applied_at", "id"]
 
+    def __str__(self) -> str:
+        return f"{self.kind} {self.op_id}"
+
 
 class Conflict(models.Model):
     """A stale edit from a device: both versions kept until the inspector resolves it."""
 
     finding = models.ForeignKey(Finding, on_delete=models.CASCADE, related_name="conflicts")
-    operation = models.OneToOneField(SyncOperation, null=True, on_delete=models.SET_NULL, related_name="conflict")
+    operation = models.OneToOneField(
+        SyncOperation, null=True, on_delete=models.SET_NULL, related_name="conflict"
+    )
     base_version = models.PositiveIntegerField()
     server_version = models.JSONField(default=dict)
     device_version = models.JSONField(default=dict)
     created_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")
     created_at = models.DateTimeField(auto_now_add=True)
-    resolution = models.CharField(max_length=10, blank=True, help_text="'server', 'device' or empty while open")
+    resolution = models.CharField(
+        max_length=10, blank=True, help_text="'server', 'device' or empty while open"
+    )
     resolved_by = models.ForeignKey(
         settings.AUTH_USER_MODEL, null=True, blank=True, on_delete=models.SET_NULL, related_name="+"
     )
@@ -229,3 +244,6 @@ class Conflict(models.Model):
 
     class Meta:
         ordering = ["created_at", "id"]
+
+    def __str__(self) -> str:
+        return f"conflict on finding {self.finding_id} ({self.resolution or 'open'})"

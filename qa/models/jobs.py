@@ -20,12 +20,15 @@ class Job(models.Model):
     address = models.CharField(max_length=200, blank=True)
     units = models.CharField(max_length=10, choices=Units.choices, default=Units.METRIC)
     rating_scheme = models.CharField(
-        max_length=4, choices=RatingScheme.choices, default=RatingScheme.STC,
+        max_length=4,
+        choices=RatingScheme.choices,
+        default=RatingScheme.STC,
         help_text="Default rating scheme for walls of this job.",
     )
     rule_set = models.CharField(
-        max_length=200, blank=True,
-        help_text="The code or specification the targets come from, e.g. 'Project spec: STC 55 between units'.",
+        max_length=200,
+        blank=True,
+        help_text="The code or specification the targets come from, e.g. 'Project spec: STC 55 between units'.",  # noqa: E501
     )
     created_at = models.DateTimeField(auto_now_add=True)
     updated_at = models.DateTimeField(auto_now=True)
@@ -53,7 +56,8 @@ class Member(models.Model):
         constraints = [
             models.UniqueConstraint(fields=["job", "user"], name="one_membership_per_job"),
             models.CheckConstraint(
-                condition=(models.Q(role="crew") & ~models.Q(trade="")) | (~models.Q(role="crew") & models.Q(trade="")),
+                condition=(models.Q(role="crew") & ~models.Q(trade=""))
+                | (~models.Q(role="crew") & models.Q(trade="")),
                 name="crew_has_trade_others_none",
             ),
         ]

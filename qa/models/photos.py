@@ -21,8 +21,20 @@ def thumb_path(photo: Photo, filename: str) -> str:
 
 
 class PhotoManager(models.Manager):
-    def store(self, *, job, wall, finding, user, purpose, data: bytes, photo_id=None, captured_at=None,
-              caption: str = "", event: dict | None = None) -> Photo:
+    def store(
+        self,
+        *,
+        job,
+        wall,
+        finding,
+        user,
+        purpose,
+        data: bytes,
+        photo_id=None,
+        captured_at=None,
+        caption: str = "",
+        event: dict | None = None,
+    ) -> Photo:
         """Clean an uploaded image (qa.photos.clean_photo), store it and its thumbnail, record an Event.
 
         Raises qa.photos.PhotoError for a file that is not an acceptable photo, and IntegrityError
@@ -36,10 +48,19 @@ class PhotoManager(models.Manager):
 
         clean = clean_photo(data)
         photo = self.model(
-            job=job, wall=wall, finding=finding, purpose=purpose, caption=caption,
-            captured_at=captured_at or clean.captured_at, width=clean.width, height=clean.height,
-            bytes=len(clean.image), sha256=clean.sha256, received_sha256=clean.received_sha256,
-            original_format=clean.original_format, uploaded_by=user,
+            job=job,
+            wall=wall,
+            finding=finding,
+            purpose=purpose,
+            caption=caption,
+            captured_at=captured_at or clean.captured_at,
+            width=clean.width,
+            height=clean.height,
+            bytes=len(clean.image),
+            sha256=clean.sha256,
+            received_sha256=clean.received_sha256,
+            original_format=clean.original_format,
+            uploaded_by=user,
         )
         if photo_id:
             photo.id = photo_id
@@ -47,19 +68,29 @@ class PhotoManager(models.Manager):
         photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
         with transaction.atomic():
             photo.save(force_insert=True)
-            Event.record(job, user, "photo.added", photo,
-                         {"finding": finding.id if finding else None, "purpose": purpose, "sha256": photo.sha256},
-                         **(event or {}))
+            Event.record(
+                job,
+                user,
+                "photo.added",
+                photo,
+                {"finding": finding.id if finding else None, "purpose": purpose, "sha256": photo.sha256},
+                **(event or {}),
+            )
         return photo
 
 
 class Photo(models.Model):
-    """A photo of a defect, a fix or a check. ``id`` is made on the device so a replayed upload is one photo."""
+    """A photo of a defect, a fix or a check.
+
+    ``id`` is made on the device, so a replayed upload is one photo, not two.
+    """
 
     id = models.UUIDField(primary_key=True, default=uuid.uuid4)
     job = models.ForeignKey(Job, on_delete=models.CASCADE, related_name="photos")
     wall = models.ForeignKey(Wall, on_delete=models.CASCADE, related_name="photos")
-    finding = models.ForeignKey(Finding, null=True, blank=True, on_delete=models.CASCADE, related_name="photos")
+    finding = models.ForeignKey(
+        Finding, null=True, blank=True, on_delete=models.CASCADE, related_name="photos"
+    )
     purpose = models.CharField(max_length=8, choices=PhotoPurpose.choices, default=PhotoPurpose.DEFECT)
     image = models.ImageField(upload_to=photo_path)
     thumbnail = models.ImageField(upload_to=thumb_path)
@@ -67,7 +98,9 @@ class Photo(models.Model):
     height = models.PositiveIntegerField(default=0)
     bytes = models.PositiveIntegerField(default=0)
     sha256 = models.CharField(max_length=64, help_text="Of the stored (cleaned) image.")
-    received_sha256 = models.CharField(max_length=64, blank=True, help_text="Of the file as the device sent it.")
+    received_sha256 = models.CharField(
+        max_length=64, blank=True, help_text="Of the file as the device sent it."
+    )
     original_format = models.CharField(max_length=10, blank=True)
     captured_at = models.DateTimeField(null=True, blank=True)
     uploaded_by = models.ForeignKey(settings.AUTH_USER_MODEL, on_delete=models.PROTECT, related_name="+")

@@ -154,7 +154,9 @@ class SealPoint(models.Model):
     caution = models.CharField(max_length=40, blank=True)
     position = models.PositiveIntegerField(default=0)
     status = models.CharField(max_length=10, choices=SealStatus.choices, default=SealStatus.UNCHECKED)
-    checked_by = models.ForeignKey("auth.User", null=True, blank=True, on_delete=models.SET_NULL, related_name="+")
+    checked_by = models.ForeignKey(
+        "auth.User", null=True, blank=True, on_delete=models.SET_NULL, related_name="+"
+    )
     checked_at = models.DateTimeField(null=True, blank=True)
     removed = models.BooleanField(default=False)
     version = models.PositiveIntegerField(default=1)

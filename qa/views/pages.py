@@ -50,12 +50,21 @@ def job_page(request, job_pk):
     job, member = job_for(request.user, job_pk)
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
     audits = audits_for_walls(walls)
-    findings = list(Finding.objects.live().filter(job=job).values_list(
-        "id", "wall_id", "trade", "status", "kind", "seal_point__label"))
+    findings = list(
+        Finding.objects.live()
+        .filter(job=job)
+        .values_list("id", "wall_id", "trade", "status", "kind", "seal_point__label")
+    )
     ctx = job_overview(request.GET, job, walls, audits, findings)
-    ctx.update({"job": job, "member": member, "can_fix": can(member, "fix"),
-                "can_verify": can(member, "verify"),
-                "cautions": cautions_for(GENERAL_CAUTIONS)})
+    ctx.update(
+        {
+            "job": job,
+            "member": member,
+            "can_fix": can(member, "fix"),
+            "can_verify": can(member, "verify"),
+            "cautions": cautions_for(GENERAL_CAUTIONS),
+        }
+    )
     return render(request, "qa/job.html", ctx)
 
 
@@ -70,7 +79,8 @@ def wall_page(request, job_pk, wall_pk):
     summary = audit_summary(wall)
     points = list(SealPoint.objects.filter(wall=wall, removed=False).order_by("position", "id"))
     findings = list(
-        Finding.objects.live().filter(wall=wall)
+        Finding.objects.live()
+        .filter(wall=wall)
         .select_related("seal_point", "created_by", "fixed_by", "verified_by")
         .prefetch_related(
             Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
@@ -78,12 +88,18 @@ def wall_page(request, job_pk, wall_pk):
     )
     ctx = wall_overview(job, member, wall, summary, findings)
     caution_keys = list(GENERAL_CAUTIONS) + sorted({p.caution for p in points if p.caution})
-    ctx.update({
-        "job": job, "member": member, "wall": wall, "points": points,
-        "length": units.fmt(wall.length_m, "size", job.units),
-        "height": units.fmt(wall.height_m, "size", job.units),
-        "cautions": cautions_for(dict.fromkeys(caution_keys)), "can_edit": can(member, "edit"),
-    })
+    ctx.update(
+        {
+            "job": job,
+            "member": member,
+            "wall": wall,
+            "points": points,
+            "length": units.fmt(wall.length_m, "size", job.units),
+            "height": units.fmt(wall.height_m, "size", job.units),
+            "cautions": cautions_for(dict.fromkeys(caution_keys)),
+            "can_edit": can(member, "edit"),
+        }
+    )
     return render(request, "qa/wall.html", ctx)
 
 
@@ -93,7 +109,9 @@ def describe_size(finding: Finding, u: str) -> str:
     if finding.width_m and finding.length_m:
         parts.append(f"{units.fmt(finding.width_m, 'gap', u)} × {units.fmt(finding.length_m, 'gap', u)}")
     elif finding.width_m and finding.diameter_m:
-        parts.append(f"{units.fmt(finding.width_m, 'gap', u)} gap round ⌀ {units.fmt(finding.diameter_m, 'gap', u)}")
+        parts.append(
+            f"{units.fmt(finding.width_m, 'gap', u)} gap round ⌀ {units.fmt(finding.diameter_m, 'gap', u)}"
+        )
     elif finding.diameter_m:
         parts.append(f"⌀ {units.fmt(finding.diameter_m, 'gap', u)}")
     if finding.area_m2:

@@ -95,7 +95,8 @@ def device_photo_hashes(page) -> list[str]:
       const db = await new Promise((ok, no) => {
         const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
       const rows = await new Promise((ok) => {
-        const q = db.transaction('photos').objectStore('photos').getAll(); q.onsuccess = () => ok(q.result); });
+        const q = db.transaction('photos').objectStore('photos').getAll();
+        q.onsuccess = () => ok(q.result); });
       return rows.map((r) => r.sha256);
     }""")
 

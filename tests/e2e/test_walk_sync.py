@@ -135,7 +135,9 @@ def test_two_devices_edit_same_finding_conflict_kept_and_resolved(
         page.goto(live_server.url + f"/walk/#/j/{world.job.id}/f/{finding.client_id}/edit")
         page.wait_for_selector("[data-finding-form]")
         pages.append((ctx, page))
-    for (ctx, page), (width, note) in zip(pages, [("9", "first phone"), ("12", "second phone")], strict=True):
+    for (_ctx, page), (width, note) in zip(
+        pages, [("9", "first phone"), ("12", "second phone")], strict=True
+    ):
         page.fill("#f-width", width)
         page.fill("#f-note", note)
         page.click("[data-save]")

@@ -369,15 +369,7 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:walk-conflicts": {"GET": R("edit")},
     "qa:walk-conflict-resolve": {"POST": R("edit", body=lambda s: {"keep": "server"})},
     "qa:walk-upload-open": {
-        "POST": R(
-            "fix",
-            ok=201,
-            body=upload_body,
-            known={
-                "crew_other_trade": "qa/uploads.py open_upload: another trade's finding answers 400 "
-                "(Reject), the design says 403; fix: raise PermissionDenied (or answer 403) (trade rule)"
-            },
-        )
+        "POST": R("fix", ok=201, body=upload_body)
     },
     # An upload in progress belongs to whoever opened it (here the inspector): nobody else's to probe.
     "qa:walk-upload": {

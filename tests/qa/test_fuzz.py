@@ -35,11 +35,7 @@ SKIP = {
 
 
 #: Failures already reported to the lead with their fix, matched by text; remove an entry when fixed.
-KNOWN: dict[str, str] = {
-    "GET /api/jobs/{job_pk}/conflicts/ -> 200: Schemathesis found 1 distinct failure":
-    "qa/views/walk.py ConflictListView answers a list but its schema says an object; fix: "
-    "@extend_schema(responses={200: {'type': 'array', 'items': {'type': 'object'}}})",
-}
+KNOWN: dict[str, str] = {}
 
 
 @pytest.fixture
