@@ -129,7 +129,6 @@ export async function findingFormView(root, ctx) {
     }
     for (const name of Object.keys(sizes)) if (!SIZES[data.kind].includes(name)) data[name] = null;
     if (!Number.isInteger(data.count) || data.count < 1 || data.count > 500) bad = bad || ["count", "must be a whole number from 1 to 500"];
-    if (data.kind === "bridge") data.face = "through";
     if (bad) {
       const el = document.getElementById(`f-${bad[0]}-error`);
       if (el) el.textContent = `${SIZE_TEXT[bad[0]] || "How many"} ${bad[1]}.`;
