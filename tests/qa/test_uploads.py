@@ -124,7 +124,7 @@ def test_roles(world, api, finding):
     data = plain_jpeg()
     assert open_upload(api(world.outsider), world, finding, data).status_code == 404
     assert open_upload(api(world.owner), world, finding, data).status_code == 403
-    assert open_upload(api(world.drywaller), world, finding, data).status_code == 403  # not their trade (DESIGN.md roles: 403)
+    assert open_upload(api(world.drywaller), world, finding, data).status_code == 403  # not their trade
     crew = open_upload(api(world.electrician), world, finding, data)
     assert crew.status_code == 201
     assert PhotoUpload.objects.get(pk=crew.data["id"]).purpose == "fix"
