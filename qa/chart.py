@@ -14,29 +14,9 @@ from html import escape
 
 from django.utils.safestring import SafeString, mark_safe
 
-BANDS = (
-    50,
-    63,
-    80,
-    100,
-    125,
-    160,
-    200,
-    250,
-    315,
-    400,
-    500,
-    630,
-    800,
-    1000,
-    1250,
-    1600,
-    2000,
-    2500,
-    3150,
-    4000,
-    5000,
-)
+from acoustics.bands import BANDS as _BANDS
+
+BANDS = tuple(int(f) for f in _BANDS)  # nominal centres, Hz, as ints for labels
 TICKS = {63: "63", 125: "125", 250: "250", 500: "500", 1000: "1k", 2000: "2k", 4000: "4k"}
 
 # Chart box in its own units (the SVG viewBox; the PDF scales it to millimetres).
