@@ -10,6 +10,8 @@ stud paths, f0, f_l) and :func:`predict_tl` for the web app's (21,) curve.
 
 Spec format: see :mod:`acoustics.assembly` (``Assembly.from_dict``); the names defined there
 (``Assembly``, ``Leaf``, ``Cavity``, ``Connection``, ``WallSpecError``, ...) are re-exported here.
+The formulas of each path (single leaf, cavity path and its resonance, stud path) are in
+:mod:`acoustics.wall_physics`; their names are re-exported here too. This module combines them.
 
 Notes
 -----
@@ -77,6 +79,26 @@ from .assembly import (  # re-exported: specs were defined here before the split
 )
 from .bands import sub_band_frequencies
 from .constants import C0, RHO0
+from .wall_physics import (  # re-exported: the path physics was defined here before the split
+    _BARE_ALPHA,  # noqa: F401
+    _PHI_SIN,  # noqa: F401
+    _THETA,  # noqa: F401
+    FIELD_CORRECTION,  # noqa: F401
+    _bridge_tau,
+    _compliance,  # noqa: F401
+    _layer_matrix,  # noqa: F401
+    _limp_tau,
+    _line_mobility,  # noqa: F401
+    _matmul,  # noqa: F401
+    cavity_absorption,
+    cavity_loss_factor,
+    cavity_path_tl,
+    finite_size_tau,
+    mass_law,
+    resonance_factor,
+    resonance_frequency,
+    single_leaf_tl,
+)
 
 __all__ = [
     "WallSpecError",
@@ -98,344 +120,12 @@ __all__ = [
     "resonance_factor",
 ]
 
-#: Field-incidence correction for one-third-octave bands, dB (Bies Eq. 7.42 [TR]).
-FIELD_CORRECTION = 5.5
 #: Sub-band points per third octave for tau averaging.
 POINTS = 8
-#: Bare stud-cavity absorption coefficient, gypsum board on studs, at 125...4000 Hz (octaves)
-#: (classic handbook table, from memory).
-_BARE_ALPHA = (np.array([125.0, 250, 500, 1000, 2000, 4000]), np.array([0.04, 0.04, 0.04, 0.04, 0.04, 0.04]))
 #: Depth a resilient channel adds to the cavity, m (1/2 in channel).
 CHANNEL_DEPTH = 0.0127
 #: Connections whose studs or furring run through the cavity and block lateral air motion across the bays.
 PARTITIONING = ("wood_stud", "steel_stud", "staggered_studs", "double_studs", "furring")
-
-
-# ---------------------------------------------------------------- single leaf physics
-def mass_law(f: Any, m: float, *, incidence: str = "field", c0: float = C0, rho0: float = RHO0) -> np.ndarray:
-    """Mass-law TL of an infinite limp panel, dB.
-
-    Parameters
-    ----------
-    f : array_like
-        Frequency, Hz. m : surface density, kg/m^2.
-    incidence : {"field", "normal"}
-
-    Notes
-    -----
-    TL_0 = 10 lg(1 + (pi f m / (rho0 c0))^2) (Bies Eq. 7.40); field = TL_0 - 5.5 dB (Eq. 7.42).
-    """
-    tl0 = 10.0 * np.log10(1.0 + (np.pi * np.asarray(f, float) * m / (rho0 * c0)) ** 2)
-    if incidence == "normal":
-        return tl0
-    if incidence != "field":
-        raise WallSpecError(f"incidence must be 'field' or 'normal', got {incidence!r}")
-    return tl0 - FIELD_CORRECTION
-
-
-def finite_size_tau(f: Any, m: float, area: float, *, c0: float = C0, rho0: float = RHO0) -> np.ndarray:
-    """Diffuse-field tau of a finite limp panel (Sewell type), NaN where the formula fails.
-
-    Notes
-    -----
-    tau = (rho0 c0 / (pi f m))^2 [ln(k sqrt S) + 0.16 + 1/(4 k^2 S)] (shape factor U = 0).
-    """
-    f = np.asarray(f, float)
-    k = 2 * np.pi * f / c0
-    bracket = np.log(k * np.sqrt(area)) + 0.16 + 1.0 / (4 * k**2 * area)
-    tau = (rho0 * c0 / (np.pi * f * m)) ** 2 * bracket
-    return np.where((bracket > 0) & (k * np.sqrt(area) > 1.0), tau, np.nan)
-
-
-def _limp_tau(f: np.ndarray, m: float, area: float | None, c0: float, rho0: float) -> np.ndarray:
-    tau = 10 ** (-mass_law(f, m, c0=c0, rho0=rho0) / 10)
-    if area:
-        tau = np.fmin(tau, finite_size_tau(f, m, area, c0=c0, rho0=rho0))
-    return tau
-
-
-def single_leaf_tl(
-    f: Any, m: float, fc: float, eta: Any, *, area: float | None = None, c0: float = C0, rho0: float = RHO0
-) -> np.ndarray:
-    """TL of a single leaf by Sharp's method as given by Bies (Section 7.2.4.1), dB.
-
-    Parameters
-    ----------
-    f : array_like
-        Frequency, Hz.
-    m : float
-        Surface density, kg/m^2.
-    fc : float
-        Critical frequency, Hz.
-    eta : float or array_like
-        Total loss factor (broadcast with f).
-    area : float, optional
-        Panel area, m^2; enables the finite-size correction at low frequency.
-
-    Notes
-    -----
-    f <= fc/2: limp panel (field mass law, or Sewell's finite panel where higher);
-    f >= fc: TL_0 + 10 lg(2 eta f / (pi fc)) (Bies Eq. 7.44), never above the limp value;
-    between: straight line in lg f.
-    """
-    f = np.asarray(f, float)
-    eta = np.broadcast_to(np.asarray(eta, float), f.shape)
-    lo = -10 * np.log10(_limp_tau(f, m, area, c0, rho0))
-
-    def above(ff: np.ndarray, ee: np.ndarray) -> np.ndarray:
-        return mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(
-            2 * ee * ff / (np.pi * fc)
-        )
-
-    tl = np.where(f <= fc / 2, lo, np.minimum(above(f, eta), lo))
-    mid = (f > fc / 2) & (f < fc)
-    if np.any(mid):
-        fa = np.full(f.shape, fc / 2)
-        t_lo = -10 * np.log10(_limp_tau(fa, m, area, c0, rho0))
-        t_hi = above(np.full(f.shape, float(fc)), eta)
-        x = np.log10(f / (fc / 2)) / np.log10(2.0)
-        tl = np.where(mid, t_lo + x * (t_hi - t_lo), tl)
-    return tl
-
-
-# ---------------------------------------------------------------- double leaf physics
-def resonance_frequency(
-    m1: float,
-    m2: float,
-    depth: float,
-    *,
-    fill_thickness: float = 0.0,
-    spring_per_area: float = 0.0,
-    c0: float = C0,
-    rho0: float = RHO0,
-) -> float:
-    """Mass-air-mass resonance f0, Hz.
-
-    Notes
-    -----
-    f0 = (1/2pi) sqrt(s'' (m1 + m2) / (m1 m2)), s'' = rho0 c0^2 / (d + 0.4 t) + N k / S
-    (Bies Eq. 7.62; Hopkins Eq. 4.72, 4.89; the 0.4 t term makes the filled part isothermal).
-    """
-    s = rho0 * c0**2 / (depth + 0.4 * fill_thickness) + spring_per_area
-    return float(np.sqrt(s * (m1 + m2) / (m1 * m2)) / (2 * np.pi))
-
-
-def cavity_absorption(f: Any, cavity: Cavity, *, c0: float = C0, rho0: float = RHO0) -> np.ndarray:
-    """Absorption coefficient seen by the cavity field: max(bare cavity, rigidly backed fill layer).
-
-    Notes
-    -----
-    Fill: Z = -j zeta cot(k_c t) (Delany-Bazley k_c, zeta),
-    alpha = 1 - |(Z - 1)/(Z + 1)|^2 (normal incidence).
-    """
-    f = np.asarray(f, float)
-    bare = np.interp(np.log10(f), np.log10(_BARE_ALPHA[0]), _BARE_ALPHA[1])
-    t = cavity.absorber_thickness
-    if t <= 0:
-        return bare
-    kc, zeta, _ = ap.delany_bazley(f, cavity.flow_resistivity, rho0=rho0, c0=c0)
-    z = -1j * zeta / np.tan(kc * t)
-    alpha = 1 - np.abs((z - 1) / (z + 1)) ** 2
-    return np.maximum(bare, alpha)
-
-
-def cavity_path_tl(
-    f: Any, tl1: Any, tl2: Any, tl_m: Any, f0: float, depth: float, alpha: Any = None, *, c0: float = C0
-) -> np.ndarray:
-    """TL of the cavity path of a double leaf (Sharp, as given by Bies Eq. 7.64), dB.
-
-    Parameters
-    ----------
-    f : array_like
-        Frequency, Hz.
-    tl1, tl2 : array_like
-        Single-leaf TL of each leaf, dB.
-    tl_m : array_like
-        Mass-law TL of the combined mass m1 + m2, dB.
-    f0 : float
-        Mass-air-mass resonance, Hz. depth : cavity depth d, m.
-    alpha : array_like, optional
-        Cavity absorption coefficient; None = fully absorbing (Sharp's assumption).
-
-    Notes
-    -----
-    TL = TL_M (f <= f0); TL1 + TL2 + 20 lg(2kd) (f0 < f < f_l); TL1 + TL2 + 6 (f >= f_l = c0/(2 pi d));
-    with ``alpha``: tau >= tau1 tau2 / (4 alpha) (diffuse cavity, derived).
-    """
-    f = np.asarray(f, float)
-    t12 = 10 ** (-(np.asarray(tl1, float) + np.asarray(tl2, float)) / 10)
-    k = 2 * np.pi * f / c0
-    fl = c0 / (2 * np.pi * depth)
-    tau = np.where(f < fl, t12 / (2 * k * depth) ** 2, t12 / 4)
-    if alpha is not None:
-        tau = np.maximum(tau, t12 / (4 * np.asarray(alpha, float)))
-    return np.where(f <= f0, np.asarray(tl_m, float), -10 * np.log10(tau))
-
-
-#: Angles for the diffuse-field average of the lumped resonance model, rad (field incidence, 0-78 deg).
-_THETA = np.deg2rad(np.linspace(1.625, 76.375, 24))
-#: sin of the azimuth between the trace wave and the studs (0-90 deg, 6 midpoints).
-_PHI_SIN = np.sin(np.deg2rad(np.linspace(7.5, 82.5, 6)))
-
-
-def cavity_loss_factor(f: Any, depth: float, alpha: Any, *, c0: float = C0) -> np.ndarray:
-    """Loss factor of the air in a cavity of depth d whose faces absorb alpha, dimensionless.
-
-    Notes
-    -----
-    Energy balance of a diffuse field in a room of volume V = S d bounded by two faces of area S with
-    absorption area A = 2 alpha S: eta = c0 A / (8 pi f V) (Sabine's decay rate written as a loss
-    factor, eta = 2.2 / (f T)) = alpha / (2 k d). Derived; the same alpha limits the cavity path.
-    """
-    f = np.asarray(f, float)
-    return np.asarray(alpha, float) * c0 / (4 * np.pi * f * depth)
-
-
-def _layer_matrix(kc: Any, zc: Any, kx: Any, h: float) -> tuple[Any, Any, Any, Any]:
-    """Transfer matrix (T11, T12, T21, T22) for (p, v_z) of a fluid layer of thickness h at trace kx."""
-    kz = np.sqrt(kc**2 - kx**2 + 0j)
-    kz = np.where(kz.imag > 0, -kz, kz)  # decaying branch for exp(j omega t)
-    zn = zc * kc / kz
-    c, s = np.cos(kz * h), np.sin(kz * h)
-    return c, 1j * zn * s, 1j * s / zn, c
-
-
-def _matmul(a: tuple[Any, ...], b: tuple[Any, ...]) -> tuple[Any, Any, Any, Any]:
-    return (
-        a[0] * b[0] + a[1] * b[2],
-        a[0] * b[1] + a[1] * b[3],
-        a[2] * b[0] + a[3] * b[2],
-        a[2] * b[1] + a[3] * b[3],
-    )
-
-
-def resonance_factor(
-    f: Any,
-    m1: float,
-    m2: float,
-    cavity: Cavity,
-    eta_air: Any,
-    *,
-    partitioned: bool = False,
-    c0: float = C0,
-    rho0: float = RHO0,
-) -> np.ndarray:
-    """Diffuse-field transmission of two air-coupled limp leaves over that of one leaf of mass m1 + m2.
-
-    Parameters
-    ----------
-    f : array_like
-        Frequency, Hz.
-    m1, m2 : float
-        Leaf surface densities, kg/m^2.
-    cavity : Cavity
-        Depth and porous fill (fill laid against leaf 1).
-    eta_air : array_like
-        Loss factor of the cavity (broadcast with f), see :func:`cavity_loss_factor`.
-    partitioned : bool
-        Studs or furring cross the cavity: the air cannot move laterally across the bays, only along them.
-
-    Returns
-    -------
-    ndarray
-        R(f) = <tau_2> / <tau_M>, averaged over 0-78 degrees with weight sin cos (and over the azimuth
-        to the studs when partitioned): R >> 1 around f0 when the cavity is poorly damped, R -> 1 well
-        below f0, R << 1 above.
-
-    Notes
-    -----
-    Transfer-matrix model limp leaf - cavity layer(s) - limp leaf, infinite layers at trace
-    wavenumber k_x = k sin(theta) (the standard layered-media method, e.g. Vigran 2008 ch. 6 and
-    Allard & Atalla 2009, from memory). The cavity layers give p_a = A v1 + B v2, p_b = C v1 + D v2
-    (A = T11/T21, B = -det T / T21, C = 1/T21, D = -T22/T21) and, with Z0 = rho0 c0 / cos(theta),
-
-        tau(theta) = | 2 Z0 C / ((j w m1 + Z0 + A)(j w m2 + Z0 - D) + B C) |^2.
-
-    Bulk modulus of the cavity rho0 c0^2 (1 + j eta) d / (d + 0.4 t): the same isothermal-fill
-    softening as :func:`resonance_frequency`, with the cavity's own loss. The fill adds the
-    Delany-Bazley dynamic density rho = Z_c k_c / omega (flow resistance). Partitioned: k_x along
-    the studs only, k_x sin(phi), phi uniform over 0-90 degrees (derived).
-
-    For a thin locally reacting layer this is the lumped mass-air-mass system of Bies Eq. 7.62 /
-    Hopkins Eq. 4.72 with its damping kept; far above f0 (normal incidence) it tends to
-    tau1 tau2 / (2 k d)^2, Sharp's middle branch. An empty cavity is not locally reacting: along the
-    bays its resonance rises as 1/cos(theta), which spreads the dip over the octave above f0.
-    """
-    f = np.asarray(f, float)
-    w = (2 * np.pi * f)[..., None]
-    if partitioned:
-        w = w[..., None]
-    k = w / c0
-    cos, sin = np.cos(_THETA), np.sin(_THETA)
-    z0 = rho0 * c0 / cos
-    kx = k * sin * (_PHI_SIN[:, None] if partitioned else 1.0)
-    extra = (None, None) if partitioned else (None,)
-    eta = np.asarray(eta_air, float)[(..., *extra)] if np.ndim(eta_air) else eta_air
-    d, tf = cavity.depth, cavity.absorber_thickness
-    kmod = rho0 * c0**2 * (1 + 1j * eta) * d / (d + 0.4 * tf)  # bulk modulus, as in f0, with the cavity loss
-    layers = []
-    if tf > 0:  # fill: Delany-Bazley dynamic density (flow resistance damps the lateral air motion)
-        kf, zf, _ = ap.delany_bazley(f, cavity.flow_resistivity, rho0=rho0, c0=c0)
-        rho_f = (zf * kf * rho0 * c0 / (2 * np.pi * f))[(..., *extra)]
-        layers.append(_layer_matrix(w * np.sqrt(rho_f / kmod), np.sqrt(rho_f * kmod), kx, tf))
-    if d - tf > 1e-6:
-        layers.append(_layer_matrix(w * np.sqrt(rho0 / kmod), np.sqrt(rho0 * kmod), kx, d - tf))
-    t11, t12, t21, t22 = layers[0] if len(layers) == 1 else _matmul(layers[0], layers[1])
-    a_, b_, c_, d_ = t11 / t21, -(t11 * t22 - t12 * t21) / t21, 1 / t21, -t22 / t21
-    den = (1j * w * m1 + z0 + a_) * (1j * w * m2 + z0 - d_) + b_ * c_
-    tau = np.abs(2 * z0 * c_ / den) ** 2
-    tau_m = np.abs(2 * z0 / (1j * w * (m1 + m2) + 2 * z0)) ** 2
-    if partitioned:
-        tau = tau.mean(-2)
-        tau_m = tau_m[..., 0, :]
-    wt = sin * cos
-    return (tau * wt).sum(-1) / (tau_m * wt).sum(-1)
-
-
-def _line_mobility(f: np.ndarray, leaf: Leaf) -> np.ndarray:
-    w = 2 * np.pi * f
-    cb = (w**2 * leaf.stiffness / leaf.m) ** 0.25
-    return (1 - 1j) / (4 * leaf.m * cb)
-
-
-def _compliance(y1: np.ndarray, y2: np.ndarray, f: np.ndarray, k: float | None) -> np.ndarray:
-    if k is None:
-        return np.ones_like(f)
-    ys = 1j * 2 * np.pi * f / (k * (1 + 0.1j))
-    return np.minimum(1.0, np.abs(y1 + y2) ** 2 / np.abs(y1 + y2 + ys) ** 2)
-
-
-def _bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray) -> np.ndarray:
-    """Stud/point path tau (Vigran Eq. 8.20-8.26 with compliance), zero for decoupled leaves."""
-    a, b = asm.leaves
-    c = asm.connection
-    m1, m2, fc1, fc2 = a.m, b.m, a.fc, b.fc
-    if c.type in ("none", "double_studs") or (c.type == "points" and c.spacing is None):
-        return np.zeros_like(f)
-    if c.channel_leaf is not None or c.type == "points":
-        grid = (c.channel_spacing * c.spacing) if c.channel_leaf is not None else c.spacing**2
-        fg = (m1 * fc2 + m2 * fc1) / (m1 + m2)
-        dr = max(0.0, 20 * np.log10(np.sqrt(grid) * fg) - 45)
-        y1 = np.full(f.shape, 1 / (8 * np.sqrt(a.stiffness * m1)), complex)
-        y2 = np.full(f.shape, 1 / (8 * np.sqrt(b.stiffness * m2)), complex)
-        if c.channel_leaf is not None:
-            k = c.channel_stiffness
-            if c.stiffness is not None:  # channel on a steel stud: springs in series (stud per point)
-                k = 1 / (1 / k + 1 / (c.stiffness * c.channel_spacing))
-        else:
-            k = c.stiffness
-        comp = _compliance(y1, y2, f, k)
-    else:
-        spacing = asm.height / 2 if c.type == "staggered_studs" else c.spacing
-        fcl = ((m1 * np.sqrt(fc2) + m2 * np.sqrt(fc1)) / (m1 + m2)) ** 2
-        dr = max(0.0, 10 * np.log10(spacing * fcl) - 23)
-        comp = _compliance(_line_mobility(f, a), _line_mobility(f, b), f, c.stiffness)
-    # Below fc/2 Sharp's bridge term; from fc up the rigidly tied leaves radiate as one panel of mass
-    # m1 + m2 (resonant radiation, sigma ~ 1), so the bridge gain fades: straight line in lg f between.
-    fcb = min(fc1, fc2)
-    x = np.clip(np.log2(f / (fcb / 2)), 0.0, 1.0) if c.type != "staggered_studs" else 0.0
-    tl_b = -10 * np.log10(tau_m) + dr * (1 - x) - dip
-    return 10 ** (-tl_b / 10) * comp
 
 
 def _spring_per_area(c: Connection) -> float:

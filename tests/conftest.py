@@ -23,6 +23,22 @@ def _media_in_tmp(settings, tmp_path):
     settings.MEDIA_ROOT = tmp_path / "media"
 
 
+@pytest.fixture(scope="session", autouse=True)
+def _no_stray_connections(django_db_setup, django_db_blocker):
+    """Before the test database is dropped, end any connection a test thread or server left open
+    (PostgreSQL refuses to drop a database that is in use)."""
+    yield
+    from django.db import connection
+
+    if connection.vendor != "postgresql":
+        return
+    with django_db_blocker.unblock(), connection.cursor() as cursor:
+        cursor.execute(
+            "SELECT pg_terminate_backend(pid) FROM pg_stat_activity "
+            "WHERE datname = current_database() AND pid <> pg_backend_pid()"
+        )
+
+
 @pytest.fixture(autouse=True)
 def _fresh_cache():
     """Sign-in throttle counters and cached audits live in the cache; no test inherits another's."""

@@ -1,37 +1,20 @@
-"""Leak-audit pages: the crew list, mark fixed, the inspector's check, the hand-over report and sign-off.
+"""Leak-audit presentation: rating and size texts, the timeline, and the job and wall overviews.
 
 The wall and job pages (:mod:`qa.views.pages`) use the helpers here to present an audit summary
-(:func:`qa.impact.audit_summary`). Forms are plain HTML posts; every change goes through the
-finding's lifecycle methods, which write the Event shown in the timelines.
+(:func:`qa.impact.audit_summary`). The crew list, mark fixed and the inspector's check are in
+:mod:`qa.views.crew`; the hand-over report and sign-off in :mod:`qa.views.report`.
 """
 
 from __future__ import annotations
 
-from collections import OrderedDict
+from django.db.models import Q
 
-from django.contrib import messages
-from django.contrib.auth.decorators import login_required
-from django.core.exceptions import PermissionDenied
-from django.core.files.base import ContentFile
-from django.db import transaction
-from django.db.models import Prefetch, Q
-from django.http import Http404, HttpResponse
-from django.shortcuts import redirect, render
-from django.urls import reverse
-from django.utils.http import url_has_allowed_host_and_scheme
-from django.views.decorators.http import require_POST
-
-from .. import report as report_mod
-from ..access import can, job_for, membership, require
-from ..cautions import GENERAL_CAUTIONS, cautions_for
-from ..choices import FindingStatus, PhotoPurpose, Trade
+from ..access import can
+from ..choices import FindingStatus, Trade
 from ..impact import fix_steps  # noqa: F401  (re-exported for templates' views)
-from ..models import Event, Finding, Photo
-from ..models.findings import TransitionError
-from ..photos import PhotoError, clean_photo
+from ..models import Event
 
 OPEN = (FindingStatus.OPEN, FindingStatus.REOPENED)
-NOTE_MAX = 2000
 SQ_IN = 0.0254**2  # m^2, exact
 
 
@@ -79,41 +62,6 @@ def finding_size(f, u: str) -> str:
     return " ".join(parts) or "—"
 
 
-def _safe_next(request, fallback: str) -> str:
-    nxt = request.POST.get("next") or request.GET.get("next") or ""
-    if nxt and url_has_allowed_host_and_scheme(
-        nxt, allowed_hosts={request.get_host()}, require_https=request.is_secure()
-    ):
-        return nxt
-    return fallback
-
-
-def store_photo(job, finding, user, purpose: str, upload) -> Photo:
-    """Clean and store an uploaded photo of ``finding`` (same steps as the API photo upload)."""
-    clean = clean_photo(upload.read())
-    photo = Photo(
-        job=job,
-        wall_id=finding.wall_id,
-        finding=finding,
-        purpose=purpose,
-        captured_at=clean.captured_at,
-        bytes=len(clean.image),
-        width=clean.width,
-        height=clean.height,
-        sha256=clean.sha256,
-        received_sha256=clean.received_sha256,
-        original_format=clean.original_format,
-        uploaded_by=user,
-    )
-    photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-    photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-    photo.save()
-    Event.record(
-        job, user, "photo.added", photo, {"finding": finding.pk, "purpose": purpose, "sha256": photo.sha256}
-    )
-    return photo
-
-
 def timeline(job, wall=None, findings=()) -> list[Event]:
     """Events on a wall, its findings and their photos, oldest first (one query)."""
     ids = [str(f.pk) for f in findings]
@@ -132,219 +80,6 @@ def event_text(event: Event, labels: dict) -> str:
     note = event.data.get("note") if isinstance(event.data, dict) else ""
     text = f"{who}: {verb}{' — ' + what if what else ''}"
     return f"{text} · “{note}”" if note else text
-
-
-def _photos_prefetch():
-    return Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
-
-
-# --------------------------------------------------------------------------- crew and check lists
-def _grouped(findings) -> OrderedDict:
-    by_level: OrderedDict = OrderedDict()
-    for f in findings:
-        by_level.setdefault(f.wall.level, OrderedDict()).setdefault(f.wall, []).append(f)
-    return by_level
-
-
-@login_required
-def crew_page(request, job_pk):
-    """A crew member's open findings of their trade, by level and wall, with what fixed looks like."""
-    job, member = job_for(request.user, job_pk, "fix")
-    trade = member.trade if member.is_crew else request.GET.get("trade", "")
-    if trade and trade not in Trade.values:
-        raise Http404("No such trade")
-    findings = (
-        Finding.objects.live()
-        .filter(job=job, status__in=OPEN)
-        .select_related("wall", "seal_point")
-        .prefetch_related(_photos_prefetch())
-        .order_by("wall__level", "wall__tag", "id")
-    )
-    waiting = Finding.objects.live().filter(job=job, status=FindingStatus.FIXED)
-    if trade:
-        findings, waiting = findings.filter(trade=trade), waiting.filter(trade=trade)
-    findings = list(findings)
-    return render(
-        request,
-        "qa/audit/crew.html",
-        {
-            "job": job,
-            "member": member,
-            "trade": trade,
-            "trade_label": dict(Trade.choices).get(trade, "all trades"),
-            "trades": Trade.choices,
-            "by_level": _grouped(findings),
-            "count": len(findings),
-            "waiting": waiting.count(),
-            "cautions": cautions_for(GENERAL_CAUTIONS),
-        },
-    )
-
-
-@login_required
-def check_page(request, job_pk):
-    """The inspector's list of findings reported fixed and waiting for a check."""
-    job, member = job_for(request.user, job_pk, "verify")
-    findings = list(
-        Finding.objects.live()
-        .filter(job=job, status=FindingStatus.FIXED)
-        .select_related("wall", "seal_point", "fixed_by")
-        .prefetch_related(_photos_prefetch())
-        .order_by("wall__level", "wall__tag", "id")
-    )
-    return render(
-        request,
-        "qa/audit/check.html",
-        {
-            "job": job,
-            "member": member,
-            "by_level": _grouped(findings),
-            "count": len(findings),
-            "cautions": cautions_for(GENERAL_CAUTIONS),
-        },
-    )
-
-
-def _finding_for_step(request, job_pk, finding_pk, right: str):
-    member = membership(request.user, job_pk)
-    try:
-        finding = Finding.objects.select_for_update().get(pk=finding_pk, job_id=job_pk, removed=False)
-    except (Finding.DoesNotExist, ValueError):
-        raise Http404("No such finding") from None
-    require(member, right, trade=finding.trade)
-    return member, finding
-
-
-def _note(request) -> str:
-    note = (request.POST.get("note") or "").strip()
-    if len(note) > NOTE_MAX:
-        raise ValueError(f"note: at most {NOTE_MAX} characters")
-    return note
-
-
-@login_required
-@require_POST
-def mark_fixed(request, job_pk, finding_pk):
-    """Crew of the finding's trade (or the inspector) reports it fixed, with a photo and a note."""
-    try:
-        with transaction.atomic():
-            member, finding = _finding_for_step(request, job_pk, finding_pk, "fix")
-            note = _note(request)
-            finding.mark_fixed(request.user, note)
-            if request.FILES.get("photo"):
-                store_photo(member.job, finding, request.user, PhotoPurpose.FIX, request.FILES["photo"])
-    except (ValueError, PhotoError) as exc:  # TransitionError is a ValueError
-        messages.error(request, _message(exc))
-    else:
-        messages.success(
-            request,
-            f"{finding.get_kind_display()} on wall {finding.wall.tag} marked fixed. "
-            "The inspector will check it.",
-        )
-    return redirect(_safe_next(request, reverse("qa:crew", args=[job_pk])))
-
-
-@login_required
-@require_POST
-def check_finding(request, job_pk, finding_pk):
-    """The inspector verifies or reopens a fixed finding, optionally with a photo."""
-    action = request.POST.get("action")
-    if action not in ("verify", "reopen"):
-        messages.error(request, "action: choose verify or reopen")
-        return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
-    try:
-        with transaction.atomic():
-            member, finding = _finding_for_step(request, job_pk, finding_pk, "verify")
-            note = _note(request)
-            if action == "reopen" and not note:
-                raise ValueError("note: say why the finding is reopened")
-            (finding.verify if action == "verify" else finding.reopen)(request.user, note)
-            if request.FILES.get("photo"):
-                store_photo(member.job, finding, request.user, PhotoPurpose.VERIFY, request.FILES["photo"])
-    except (ValueError, PhotoError) as exc:
-        messages.error(request, _message(exc))
-    else:
-        done = "verified" if action == "verify" else "reopened"
-        messages.success(request, f"{finding.get_kind_display()} on wall {finding.wall.tag} {done}.")
-    return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
-
-
-def _message(exc: Exception) -> str:
-    if isinstance(exc, TransitionError):
-        return str(exc).partition(": ")[2] or str(exc)
-    return str(exc)
-
-
-# --------------------------------------------------------------------------- report and sign-off
-@login_required
-def report_page(request, job_pk):
-    job, member = job_for(request.user, job_pk)
-    content = report_mod.report_content(job)
-    digest = report_mod.content_sha256(content)
-    signed = report_mod.last_sign_off(job)
-    return render(
-        request,
-        "qa/report/index.html",
-        {
-            "job": job,
-            "member": member,
-            "digest": digest,
-            "signed": signed,
-            "current": signed is not None and signed.data.get("sha256") == digest,
-            "can_sign": can(member, "sign"),
-            "totals": content["totals"],
-            "cautions": cautions_for(GENERAL_CAUTIONS),
-        },
-    )
-
-
-@login_required
-def report_pdf(request, job_pk):
-    job, _member = job_for(request.user, job_pk)
-    content = report_mod.report_content(job)
-    pdf = report_mod.render_pdf(job, content)
-    response = HttpResponse(pdf, content_type="application/pdf")
-    response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-handover.pdf"'
-    return response
-
-
-@login_required
-def punch_list_csv(request, job_pk):
-    job, _member = job_for(request.user, job_pk)
-    response = HttpResponse(report_mod.punch_list_csv(job), content_type="text/csv; charset=utf-8")
-    response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-punch-list.csv"'
-    return response
-
-
-@login_required
-@require_POST
-def sign_off(request, job_pk):
-    """The owner signs the report as it stands: an Event with who, when and the content's sha256."""
-    job, member = job_for(request.user, job_pk)
-    if not can(member, "sign"):
-        raise PermissionDenied("Only the owner signs off the hand-over report")
-    content = report_mod.report_content(job)
-    digest = report_mod.content_sha256(content)
-    seen = request.POST.get("sha256", "")
-    if seen and seen != digest:
-        messages.error(
-            request, "The record changed while you were reading; review the report again, then sign."
-        )
-        return redirect("qa:report", job_pk=job.pk)
-    Event.record(
-        job,
-        request.user,
-        "report.signed",
-        job,
-        {
-            "sha256": digest,
-            "who": request.user.get_full_name() or request.user.username,
-            "walls": content["totals"]["walls"],
-            "open": content["totals"]["open"],
-        },
-    )
-    messages.success(request, "Hand-over report signed off.")
-    return redirect("qa:report", job_pk=job.pk)
 
 
 # --------------------------------------------------------------------------- job and wall overviews

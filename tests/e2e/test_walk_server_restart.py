@@ -16,6 +16,7 @@ from __future__ import annotations
 import contextlib
 import json
 import os
+import shutil
 import signal
 import socket
 import subprocess
@@ -49,8 +50,10 @@ UNREACHABLE = (
 
 
 @pytest.fixture
-def server():
-    """One inspector on a two-wall job; the kit stops its own gunicorn, this fixture the restarted one."""
+def server(artifacts):
+    """One inspector on a two-wall job; the kit stops its own gunicorn, this fixture the restarted one.
+
+    The server's log (both runs) is kept in the artifacts folder for a failed CI run."""
     with prepared_server(workers=2, walls=2, people=[("insp", "inspector", "")]) as srv:
         original = srv.master
         try:
@@ -58,6 +61,7 @@ def server():
         finally:
             if srv.master is not original:
                 stop(srv.master)
+            shutil.copyfile(srv.log, artifacts / "walk-server-restart-gunicorn.log")
 
 
 def stop(master: subprocess.Popen) -> None:
@@ -70,12 +74,24 @@ def stop(master: subprocess.Popen) -> None:
 
 
 def alive(pid: int) -> bool:
-    """True while ``pid`` runs (a zombie left for its new parent to reap counts as gone)."""
+    """True while any thread of ``pid`` runs.
+
+    A gunicorn worker has threads: its main thread turns zombie first and the open files (the
+    listening socket among them) are released only when the last thread has exited, so every task
+    is checked. A zombie left for its new parent to reap counts as gone.
+    """
     try:
-        state = Path(f"/proc/{pid}/stat").read_text().rsplit(")", 1)[1].split()[0]
+        tasks = list(Path(f"/proc/{pid}/task").iterdir())
     except OSError:
         return False
-    return state not in ("Z", "X")
+    for task in tasks:
+        try:
+            state = (task / "stat").read_text().rsplit(")", 1)[1].split()[0]
+        except OSError:
+            continue
+        if state not in ("Z", "X"):
+            return True
+    return False
 
 
 def port_open(url: str) -> bool:
@@ -98,6 +114,8 @@ def kill_server(server) -> list[int]:
     while any(alive(p) for p in pids) and time.monotonic() < deadline:
         time.sleep(0.05)
     assert not any(alive(p) for p in pids), f"still running after SIGKILL: {[p for p in pids if alive(p)]}"
+    while port_open(server.url) and time.monotonic() < deadline:
+        time.sleep(0.05)
     assert not port_open(server.url), "something still listens on the server's port"
     return pids
 

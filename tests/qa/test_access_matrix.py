@@ -368,9 +368,7 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:walk-sync": {"POST": R("fix", on_finding=False, body=lambda s: {"device_id": "matrix", "ops": []})},
     "qa:walk-conflicts": {"GET": R("edit")},
     "qa:walk-conflict-resolve": {"POST": R("edit", body=lambda s: {"keep": "server"})},
-    "qa:walk-upload-open": {
-        "POST": R("fix", ok=201, body=upload_body)
-    },
+    "qa:walk-upload-open": {"POST": R("fix", ok=201, body=upload_body)},
     # An upload in progress belongs to whoever opened it (here the inspector): nobody else's to probe.
     "qa:walk-upload": {
         "GET": R("view", only_opener=True, before=open_upload_as_inspector),

@@ -1,0 +1,342 @@
+"""The hand-over report as PDF (fpdf2): A4, core fonts, TL charts drawn with lines, photo thumbnails.
+
+:func:`render_pdf` draws the content gathered by :func:`qa.report.report_content`, so what is signed
+(its SHA-256, :func:`qa.report.content_sha256`) is what is printed.
+"""
+
+from __future__ import annotations
+
+import io
+
+from . import chart as chart_mod
+from .choices import FindingStatus
+from .impact import audits_for_walls
+from .models import Photo, Wall
+
+_LATIN = str.maketrans(
+    {
+        "—": "-",
+        "–": "-",
+        "−": "-",
+        "’": "'",
+        "‘": "'",
+        "“": '"',
+        "”": '"',
+        "…": "...",
+        "≥": ">=",
+        "≤": "<=",
+        "⌀": "dia. ",
+        "→": "->",
+        "›": ">",
+        "•": "-",
+        "\u00a0": " ",
+    }
+)
+
+
+def pdf_text(value) -> str:
+    """Text for the PDF's core fonts (Latin-1): common typography mapped, anything else '?'."""
+    return (
+        str(value if value is not None else "")
+        .replace("⌀ ", "⌀")
+        .translate(_LATIN)
+        .encode("latin-1", "replace")
+        .decode("latin-1")
+    )
+
+
+def _rating(w: dict, value) -> str:
+    if value is None:
+        return "-"
+    return f"{w['rating_name']} {value}"
+
+
+def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
+    """The hand-over report as PDF bytes (A4, core fonts, charts drawn with fpdf2 lines)."""
+    from fpdf import FPDF
+    from fpdf.enums import XPos, YPos
+
+    # At call time: qa.report imports this module to re-export render_pdf.
+    from .report import _when, _who, content_sha256, last_sign_off
+
+    digest = content_sha256(content)
+    signed = last_sign_off(job)
+    walls = {w.pk: w for w in Wall.objects.live().filter(job=job).select_related("wall_type")}
+    audits = audits_for_walls(list(walls.values()))
+    thumbs = _thumbs(job) if photos else {}
+
+    pdf = FPDF(format="A4")
+    pdf.set_auto_page_break(True, margin=15)
+    pdf.set_title(pdf_text(f"Hand-over report - {job.name}"))
+    pdf.set_creator("Sealwalk")
+    pdf.alias_nb_pages()
+    W = pdf.epw
+
+    def para(text, size=10, style="", h=5):
+        # Own word wrap: fpdf2's multi_cell costs about 4 ms a paragraph, too slow for 1000 findings.
+        pdf.set_font("Helvetica", style, size)
+        for line in _wrap(pdf, pdf_text(text), W):
+            pdf.cell(W, h, line, new_x=XPos.LMARGIN, new_y=YPos.NEXT)
+
+    def heading(text, size=14):
+        pdf.ln(2)
+        para(text, size, "B", 7)
+
+    def row(cells, widths, style="", size=8, fill=False):
+        pdf.set_font("Helvetica", style, size)
+        if pdf.will_page_break(5):
+            pdf.add_page()
+        for text, width in zip(cells, widths, strict=True):
+            pdf.cell(width, 5, _fit(pdf, pdf_text(text), width - 1), border="B", fill=fill)
+        pdf.ln(5)
+
+    pdf.add_page()
+    j = content["job"]
+    para(f"Hand-over report: {j['name']}", 18, "B", 9)
+    para(j["address"])
+    para(f"Rule set: {j['rule_set'] or 'not recorded - confirm with the authority having jurisdiction'}")
+    para(f"Rating scheme: {j['rating_scheme']}. Units: {j['units']}.")
+    if content["targets"]:
+        para("Targets: " + "; ".join(f"{n} {t}" for n, t in content["targets"]))
+    t = content["totals"]
+    para(
+        f"{t['walls']} walls, {t['below_target']} below target now. "
+        f"{t['findings']} findings: {t['open']} open, "
+        f"{t['fixed']} reported fixed awaiting check, {t['verified']} verified.",
+        11,
+        "B",
+    )
+    para(f"Report content SHA-256: {digest}", 8)
+    if signed is not None:
+        state = (
+            "matches this report"
+            if signed.data.get("sha256") == digest
+            else "DOES NOT match this report: the record changed after sign-off"
+        )
+        para(
+            f"Signed off by {signed.data.get('who', _who(signed.actor))} on {_when(signed.at)}; "
+            f"signed content {signed.data.get('sha256', '')[:16]}... {state}.",
+            9,
+            "B",
+        )
+    else:
+        para("Not signed off yet.", 9, "B")
+    para(
+        "Ratings are laboratory-type estimates from the recorded gaps (designed curve with the findings as "
+        "leaks). Current counts only fixes the inspector verified; As found has every recorded finding open.",
+        9,
+    )
+
+    heading("Cautions")
+    for title, text, basis in content["cautions"]:
+        para(title, 9, "B")
+        para(f"{text} ({basis})", 8, h=4)
+
+    heading("Walls")
+    widths = [18, 10, 44, 18, 20, 20, 20, 14, 16]
+    row(
+        ["Wall", "Level", "Wall type", "Target", "Designed", "As found", "Current", "Short", "Open"],
+        widths,
+        "B",
+    )
+    open_by_wall: dict[str, int] = {}
+    for f in content["findings"]:
+        if f["status"] in (FindingStatus.OPEN, FindingStatus.REOPENED):
+            open_by_wall[f["wall"]] = open_by_wall.get(f["wall"], 0) + 1
+    for w in content["walls"]:
+        row(
+            [
+                w["tag"],
+                w["level"],
+                w["wall_type"],
+                _rating(w, w["target"]),
+                _rating(w, w["designed"]),
+                _rating(w, w["walked"]),
+                _rating(w, w["current"]),
+                w["shortfall"] if w["shortfall"] else "",
+                open_by_wall.get(w["tag"], 0),
+            ],
+            widths,
+        )
+
+    by_wall: dict[str, list] = {}
+    for f in content["findings"]:
+        by_wall.setdefault(f["wall"], []).append(f)
+    for w in content["walls"]:
+        items = by_wall.get(w["tag"], [])
+        if not items:
+            continue
+        if pdf.will_page_break(95):
+            pdf.add_page()
+        heading(f"Wall {w['tag']} - level {w['level']}, {w['location']}", 12)
+        para(
+            f"{w['wall_type']}; {w['size']}. Target {_rating(w, w['target'])}, designed "
+            f"{_rating(w, w['designed'])}, as found {_rating(w, w['walked'])}, current (verified fixes) "
+            f"{_rating(w, w['current'])}, if reported fixes hold {_rating(w, w['reported'])}.",
+            9,
+        )
+        if w["terms"]:
+            para(f"Current spectrum terms: C {w['terms']['c']}, Ctr {w['terms']['ctr']} dB (ISO 717-1).", 8)
+        if w["error"]:
+            para(f"No rating: {w['error']}", 9, "B")
+        else:
+            _draw_chart(pdf, chart_mod.tl_chart(audits[w["id"]]))
+        for text in w["flags"]:
+            para(f"Model note: {text}", 7, h=3.5)
+        for u in w["unmodelled"]:
+            para(f"Finding #{u['finding']} not in the rating: {u['reason']}", 7, h=3.5)
+        for f in items:
+            if pdf.will_page_break(12):
+                pdf.add_page()
+            buys = f", fix-first step {f['step']} buys +{f['buys']} {w['rating_name']}" if f["step"] else ""
+            para(
+                f"#{f['id']} {f['kind']}, {f['size']}, {f['face'].lower()}, {f['trade']}: "
+                f"{f['status_label']}{buys}",
+                8.5,
+                "B",
+                4.2,
+            )
+            fixed = f"Fixed by {f['fixed_by']} {f['fixed_at']}" if f["fixed_at"] else ""
+            checked = f"verified by {f['verified_by']} {f['verified_at']}" if f["verified_at"] else ""
+            detail = "; ".join(
+                x
+                for x in (
+                    f["seal_point"] and f"At {f['seal_point'].lower()}",
+                    f["note"],
+                    f"Found by {f['found_by']} {f['found_at']}",
+                    fixed,
+                    f["fix_note"] and f"fix note: {f['fix_note']}",
+                    checked,
+                )
+                if x
+            )
+            para(detail, 7.5, h=3.6)
+            pics = thumbs.get(f["id"], [])[:3]
+            if pics:
+                if pdf.will_page_break(26):
+                    pdf.add_page()
+                y = pdf.get_y() + 1
+                for k, data in enumerate(pics):
+                    pdf.image(io.BytesIO(data), x=pdf.l_margin + k * 27, y=y, w=25, h=25)
+                pdf.set_y(y + 26)
+
+    heading("Open items (fix-first order within each wall)")
+    ow = [16, 12, 34, 40, 30, 14, 34]
+    row(["Wall", "#", "Kind", "Size", "Trade", "Buys", "Seal point"], ow, "B")
+    open_items = [f for f in content["findings"] if f["status"] != FindingStatus.VERIFIED]
+    open_items.sort(key=lambda f: (-(f["buys"] or 0), f["wall"], f["step"] or 0))
+    for f in open_items:
+        row(
+            [
+                f["wall"],
+                f["id"],
+                f["kind"],
+                f["size"],
+                f["trade"],
+                f"+{f['buys']}" if f["buys"] else "",
+                f["seal_point"],
+            ],
+            ow,
+        )
+    return bytes(pdf.output())
+
+
+def _wrap(pdf, text: str, width: float) -> list[str]:
+    """Lines of ``text`` no wider than ``width`` mm in the current font (words kept whole when they fit)."""
+    space = pdf.get_string_width(" ")
+    lines: list[str] = []
+    for raw in text.split("\n"):
+        line, used = "", 0.0
+        for word in raw.split(" "):
+            w = pdf.get_string_width(word)
+            if line and used + space + w <= width:
+                line, used = f"{line} {word}", used + space + w
+                continue
+            if line:
+                lines.append(line)
+            if w > width:
+                word = _fit(pdf, word, width)
+                w = pdf.get_string_width(word)
+            line, used = word, w
+        lines.append(line)
+    return lines
+
+
+def _fit(pdf, text: str, width: float) -> str:
+    """``text`` cut to ``width`` mm in the current font, with '...' when cut (table cells only)."""
+    if pdf.get_string_width(text) <= width:
+        return text
+    while text and pdf.get_string_width(text + "...") > width:
+        text = text[:-1]
+    return text + "..."
+
+
+def _thumbs(job) -> dict[int, list[bytes]]:
+    out: dict[int, list[bytes]] = {}
+    for p in Photo.objects.filter(job=job, removed=False, finding__isnull=False).order_by(
+        "uploaded_at", "id"
+    ):
+        try:
+            with p.thumbnail.open("rb") as fh:
+                out.setdefault(p.finding_id, []).append(fh.read())
+        except (OSError, ValueError):
+            continue  # a missing file must not stop the report; the photo's hash is still listed
+    return out
+
+
+def _draw_chart(pdf, chart) -> None:
+    """Draw a :class:`qa.chart.Chart` with fpdf2 lines at the current position (about 80 mm tall)."""
+    if chart is None:
+        return
+    if pdf.will_page_break(84):
+        pdf.add_page()
+    scale = 0.26  # mm per chart unit: 420 units -> 109 mm
+    x0, y0 = pdf.l_margin, pdf.get_y() + 1
+
+    def P(x, y):
+        return x0 + x * scale, y0 + y * scale
+
+    L, T, R, B = chart_mod.LEFT, chart_mod.TOP, chart_mod.W - chart_mod.RIGHT, chart_mod.H - chart_mod.BOTTOM
+    pdf.set_line_width(0.2)
+    pdf.set_draw_color(200, 205, 202)
+    pdf.set_font("Helvetica", "", 6)
+    for y, label in chart.y_ticks:
+        pdf.line(*P(L, y), *P(R, y))
+        pdf.text(P(L - 16, y + 3)[0], P(L, y + 3)[1], label)
+    for x, label in chart.x_ticks:
+        pdf.line(*P(x, T), *P(x, B))
+        pdf.text(P(x - 6, 0)[0], P(0, B + 12)[1], label)
+    pdf.set_draw_color(120, 128, 124)
+    pdf.rect(*P(L, T), (R - L) * scale, (B - T) * scale)
+    pdf.set_font("Helvetica", "B", 6.5)
+    pdf.text(P((L + R) / 2 - 25, 0)[0], P(0, chart_mod.H - 10)[1], "Frequency (Hz)")
+    with pdf.rotation(90, *P(12, (T + B) / 2 + 70)):
+        pdf.text(*P(12, (T + B) / 2 + 70), "Transmission loss (dB)")
+    for s in chart.series:
+        r, g, b = (int(s.stroke[i : i + 2], 16) for i in (1, 3, 5))
+        pdf.set_draw_color(r, g, b)
+        pdf.set_line_width(s.width * scale * 0.9)
+        if s.dash:
+            dash, gap = (float(v) * scale for v in s.dash.split())
+            pdf.set_dash_pattern(dash, gap)
+        for seg in s.segments:
+            pdf.polyline([P(x, y) for x, y in seg], style="D")
+        pdf.set_dash_pattern()
+    # Legend beside the chart.
+    lx, ly = x0 + chart_mod.W * scale + 4, y0 + 4
+    pdf.set_font("Helvetica", "", 7)
+    for item in chart_mod.legend(chart):
+        r, g, b = (int(item["stroke"][i : i + 2], 16) for i in (1, 3, 5))
+        pdf.set_draw_color(r, g, b)
+        pdf.set_line_width(item["width"] * scale * 0.9)
+        if item["dash"]:
+            pdf.set_dash_pattern(*(float(v) * scale for v in item["dash"].split()))
+        pdf.line(lx, ly, lx + 8, ly)
+        pdf.set_dash_pattern()
+        for k, line in enumerate(_wrap(pdf, pdf_text(item["label"]), pdf.w - pdf.r_margin - lx - 10)):
+            pdf.set_xy(lx + 10, ly - 2.5 + 3.5 * k)
+            pdf.cell(pdf.w - pdf.r_margin - lx - 10, 3.5, line)
+        ly = pdf.get_y() + 5.5
+    pdf.set_draw_color(0, 0, 0)
+    pdf.set_line_width(0.2)
+    pdf.set_xy(pdf.l_margin, y0 + chart_mod.H * scale + 2)
