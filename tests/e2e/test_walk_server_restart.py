@@ -22,13 +22,18 @@ import socket
 import subprocess
 import sys
 import time
+from collections.abc import Iterator
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pytest
 
-from tests.bench.serverkit import PASSWORD, ROOT, db_query, prepared_server
+from tests.bench.serverkit import PASSWORD, ROOT, Server, db_query, prepared_server
 from tests.conftest import login
 from tests.e2e.test_walk_offline import open_walk, open_wall, record_finding, waiting
+
+if TYPE_CHECKING:
+    from playwright.sync_api import Page
 
 pytestmark = [pytest.mark.e2e, pytest.mark.slow]
 
@@ -50,7 +55,7 @@ UNREACHABLE = (
 
 
 @pytest.fixture
-def server(artifacts):
+def server(artifacts: Path) -> Iterator[Server]:
     """One inspector on a two-wall job; the kit stops its own gunicorn, this fixture the restarted one.
 
     The server's log (both runs) is kept in the artifacts folder for a failed CI run."""
@@ -101,7 +106,7 @@ def port_open(url: str) -> bool:
         return s.connect_ex((host, int(port))) == 0
 
 
-def kill_server(server) -> list[int]:
+def kill_server(server: Server) -> list[int]:
     """SIGKILL the gunicorn master and every worker, by PID; return when none runs and the port is shut."""
     workers = server.workers()
     assert workers, "gunicorn has no workers to kill"
@@ -120,7 +125,7 @@ def kill_server(server) -> list[int]:
     return pids
 
 
-def start_again(server) -> None:
+def start_again(server: Server) -> None:
     """A new gunicorn on the same port, same database and data folder (the kit's command line)."""
     port = server.url.rsplit(":", 1)[1]
     logf = open(server.log, "a")  # noqa: SIM115 - the server owns it until the test ends
@@ -148,11 +153,23 @@ def start_again(server) -> None:
     server.wait_ready()
 
 
-def now(page) -> str:
+def wait_for_active_worker(page: Page) -> None:
+    """Wait until the service worker the signed-in pages register is active.
+
+    Opening the walk while the worker is still installing leaves that page uncontrolled for its
+    whole life: ``clients.claim()`` skips a page whose navigation is under way when the worker
+    activates (a client that is not execution-ready), so ``open_walk`` would wait for a controller
+    that never comes. A navigation that starts with an active worker is always controlled.
+    """
+    page.evaluate("() => { navigator.serviceWorker.ready.then(() => { window.swActive = true; }); }")
+    page.wait_for_function("() => window.swActive === true")
+
+
+def now(page: Page) -> str:
     return page.evaluate("() => new Date().toISOString()")
 
 
-def point_ids(page) -> list[int]:
+def point_ids(page: Page) -> list[int]:
     return [
         int(x)
         for x in page.eval_on_selector_all(
@@ -161,25 +178,26 @@ def point_ids(page) -> list[int]:
     ]
 
 
-def finding_ids(page) -> list[str]:
+def finding_ids(page: Page) -> list[str]:
     return page.eval_on_selector_all(
         "[data-findings] [data-finding]", "els => els.map(e => e.dataset.finding)"
     )
 
 
-def tick(page, point_id: int, status: str) -> None:
+def tick(page: Page, point_id: int, status: str) -> None:
     page.click(f"[data-point='{point_id}'] [data-act='{status}']")
     page.wait_for_selector(f"[data-point='{point_id}'][data-status='{status}']")
 
 
-def as_json(value):
+def as_json(value: str | dict) -> dict:
     return json.loads(value) if isinstance(value, str) else value
 
 
-def test_server_killed_and_restarted_during_a_walk(server, phone, artifacts):
+def test_server_killed_and_restarted_during_a_walk(server: Server, phone, artifacts: Path) -> None:
     page = phone.new_page()
     login(page, server.url, "insp", PASSWORD)
-    assert "/login/" not in page.url, "sign-in failed"
+    page.wait_for_url(lambda url: "/login/" not in url)  # signed in: the job list
+    wait_for_active_worker(page)
     open_walk(page, server.url, server.job)
     walls = db_query(server, "SELECT id, tag FROM qa_wall WHERE job_id = %s ORDER BY id", (server.job,))
     (w0, tag0), (w1, tag1) = walls
@@ -235,6 +253,12 @@ def test_server_killed_and_restarted_during_a_walk(server, phone, artifacts):
     rows = db_query(server, "SELECT client_id FROM qa_finding WHERE job_id = %s", (server.job,))
     stored = sorted(str(r[0]).replace("-", "") for r in rows)
     assert stored == sorted(f.replace("-", "") for f in device_findings)
+    notes = db_query(server, "SELECT note FROM qa_finding WHERE job_id = %s", (server.job,))
+    assert sorted(n for (n,) in notes) == [
+        "first, before the restart",
+        "second, server down",
+        "third, server down",
+    ]
     created = db_query(
         server, "SELECT count(*) FROM qa_event WHERE verb = 'finding.created' AND job_id = %s", (server.job,)
     )[0][0]
