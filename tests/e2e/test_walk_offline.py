@@ -49,6 +49,10 @@ def add_walls(world, n=2):
 
 
 def open_walk(page, base, job_id):
+    # Signed-in pages register the worker. Wait until it is active before opening the walk: a page whose
+    # navigation is still under way when the worker activates is skipped by clients.claim().
+    page.goto(base + "/")
+    page.evaluate("() => navigator.serviceWorker.ready.then(() => true)")
     page.goto(base + "/walk/")
     page.wait_for_function("() => navigator.serviceWorker.controller !== null")
     page.wait_for_selector(f"[data-take-offline='{job_id}']")

@@ -70,7 +70,7 @@ export async function wallView(root, ctx) {
         h("button", { type: "button", class: "na", "aria-pressed": String(p.status === "na"),
           "aria-label": `Not applicable: ${label}`, "data-act": "na", onclick: tick(p, "na") }, "N/A"),
         h("a", { class: "button defect", href: `#/j/${state.job.id}/w/${wall.id}/new/${p.id}`,
-          "aria-label": `Record a defect: ${label}`, "data-act": "defect" }, "＋ Defect")) : null);
+          "aria-label": `Record a defect: ${label}`, "data-act": "defect" }, "+ Defect")) : null);
   });
 
   const checked = pointsOf(state, wall.id).filter((p) => p.status !== "unchecked").length;
