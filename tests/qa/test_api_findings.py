@@ -12,15 +12,11 @@ import uuid
 import pytest
 
 from qa.models import Event, Finding, SealPoint, Wall
+from tests.qa.roles import EDIT, ROLES, SEE, as_role
 
 pytestmark = pytest.mark.django_db
 
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
 NOT_SIGNED_IN = "Authentication credentials were not provided."
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def url(job, *rest) -> str:
@@ -317,22 +313,6 @@ def test_wrong_method_is_405(world, api, method, path):
 
 # --- roles (DESIGN.md, Roles) -----------------------------------------------------------------
 
-SEE = {
-    "inspector": 200,
-    "crew": 200,
-    "crew_other_trade": 200,
-    "owner": 200,
-    "outsider": 404,
-    "anonymous": 403,
-}
-EDIT = {
-    "inspector": None,
-    "crew": 403,
-    "crew_other_trade": 403,
-    "owner": 403,
-    "outsider": 404,
-    "anonymous": 403,
-}
 # The finding is electrical; "crew" is the electrical crew lead, "crew_other_trade" the drywaller.
 FIX = {
     "inspector": 200,

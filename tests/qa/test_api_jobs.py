@@ -5,14 +5,9 @@ from __future__ import annotations
 import pytest
 
 from qa.models import Job
+from tests.qa.roles import as_role
 
 pytestmark = pytest.mark.django_db
-
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def test_job_list_shows_only_my_jobs_with_my_role(world, api):

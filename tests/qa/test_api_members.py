@@ -6,18 +6,10 @@ import pytest
 from django.contrib.auth import get_user_model
 
 from qa.models import Event, Member
+from tests.qa.roles import ROLES, SEE, as_role
 
 pytestmark = pytest.mark.django_db
 
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {
-    "inspector": 200,
-    "crew": 200,
-    "crew_other_trade": 200,
-    "owner": 200,
-    "outsider": 404,
-    "anonymous": 403,
-}
 MANAGE = {
     "inspector": None,
     "crew": 403,
@@ -26,10 +18,6 @@ MANAGE = {
     "outsider": 404,
     "anonymous": 403,
 }
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def url(job, *rest) -> str:

@@ -6,31 +6,11 @@ import pytest
 
 from qa.checklists import template_for
 from qa.models import Event, Opening
+from tests.qa.roles import EDIT, ROLES, SEE, as_role
 
 pytestmark = pytest.mark.django_db
 
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {
-    "inspector": 200,
-    "crew": 200,
-    "crew_other_trade": 200,
-    "owner": 200,
-    "outsider": 404,
-    "anonymous": 403,
-}
-EDIT = {
-    "inspector": None,
-    "crew": 403,
-    "crew_other_trade": 403,
-    "owner": 403,
-    "outsider": 404,
-    "anonymous": 403,
-}
 DOOR_KEYS = {t.key for t in template_for("door")}
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def url(job, wall, *rest) -> str:

@@ -13,18 +13,10 @@ import pytest
 from PIL import Image
 
 from qa.models import Event, Finding, Photo
+from tests.qa.roles import ROLES, SEE, as_role
 
 pytestmark = pytest.mark.django_db
 
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {
-    "inspector": 200,
-    "crew": 200,
-    "crew_other_trade": 200,
-    "owner": 200,
-    "outsider": 404,
-    "anonymous": 403,
-}
 # Upload of a photo of an electrical finding ("crew" is the electrical lead).
 ADD = {
     "inspector": 201,
@@ -35,10 +27,6 @@ ADD = {
     "anonymous": 403,
 }
 GPS_IFD = 0x8825
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def url(job, *rest) -> str:

@@ -9,32 +9,12 @@ from __future__ import annotations
 import pytest
 
 from qa.models import Event, WallType
+from tests.qa.roles import EDIT, ROLES, SEE, as_role
 
 pytestmark = pytest.mark.django_db
 
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
-SEE = {
-    "inspector": 200,
-    "crew": 200,
-    "crew_other_trade": 200,
-    "owner": 200,
-    "outsider": 404,
-    "anonymous": 403,
-}
-EDIT = {
-    "inspector": None,
-    "crew": 403,
-    "crew_other_trade": 403,
-    "owner": 403,
-    "outsider": 404,
-    "anonymous": 403,
-}
 
 FLAT_50 = [18, 22, 26, 29, 32, 35, 38, 41, 44, 47, 48, 49, 50, 51, 52, 52, 52, 52, 52, 52, 52]
-
-
-def as_role(world, api, role):
-    return api(None if role == "anonymous" else world.users()[role])
 
 
 def url(job, *rest) -> str:

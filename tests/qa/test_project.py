@@ -12,9 +12,10 @@ import pytest
 from django.core.management import call_command
 from django.urls import reverse
 
+from tests.qa.roles import ROLES
+
 ROOT = Path(__file__).resolve().parents[2]
 PASSWORD = "correct-horse-battery-9"  # tests/conftest.py
-ROLES = ["inspector", "crew", "crew_other_trade", "owner", "outsider", "anonymous"]
 
 
 def run(*args: str, timeout: float = 120) -> subprocess.CompletedProcess:
