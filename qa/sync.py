@@ -41,21 +41,13 @@ from .models import Conflict, Event, Finding, Job, Member, SealPoint, SyncOperat
 from .models.findings import TransitionError
 
 MAX_BATCH = 500
-#: Fields a device may change on a finding with ``finding.update`` (API names, job units).
-EDITABLE = (
-    "kind",
-    "face",
-    "width",
-    "length",
-    "diameter",
-    "depth",
-    "area",
-    "fill",
-    "at_edge",
-    "count",
-    "trade",
-    "note",
-    "seal_point",
+#: Fields a device may change on a finding with ``finding.update`` (API names, job units): what the
+#: finding serializer accepts, less what fixes a finding to its place and moment.
+EDITABLE = tuple(
+    name
+    for name in FindingSerializer.Meta.fields
+    if name not in FindingSerializer.Meta.read_only_fields
+    and name not in ("id", "client_id", "wall", "photos", "device_time")
 )
 
 

@@ -15,33 +15,10 @@ if sys.version_info < (3, 13):
     pytest.skip("phonometry needs Python >= 3.13", allow_module_level=True)
 pt = pytest.importorskip("phonometry.building.panel_transmission", reason="phonometry is not installed")
 
+from acoustics.bands import BANDS  # noqa: E402
 from acoustics.walls import cavity_path_tl, mass_law, resonance_frequency, single_leaf_tl  # noqa: E402
 
-F = np.array(
-    [
-        50,
-        63,
-        80,
-        100,
-        125,
-        160,
-        200,
-        250,
-        315,
-        400,
-        500,
-        630,
-        800,
-        1000,
-        1250,
-        1600,
-        2000,
-        2500,
-        3150,
-        4000,
-        5000.0,
-    ]
-)
+F = np.array(BANDS, dtype=float)  # the nominal band centres, Hz, the same inputs on both sides
 AIR = {"speed_of_sound": 343.0, "air_density": 1.21}
 
 
