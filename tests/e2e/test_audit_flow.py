@@ -9,28 +9,15 @@ from __future__ import annotations
 
 import io
 import re
-import zlib
 
 import pytest
+
+from tests.qa.pdftext import pdf_strings
 
 pytestmark = [pytest.mark.e2e, pytest.mark.slow]
 
 DEMO_PASSWORD = "walk-the-walls"  # the demo's invented users (qa/demo.py)
 DESKTOP = {"viewport": {"width": 1280, "height": 800}}
-
-
-def pdf_strings(data: bytes) -> str:
-    """Text shown by a PDF's Tj operators: streams inflated with zlib, no PDF library involved."""
-    chunks = []
-    for m in re.finditer(rb"stream\r?\n(.*?)\r?\nendstream", data, re.S):
-        raw = m.group(1)
-        try:
-            raw = zlib.decompress(raw)
-        except zlib.error:
-            pass
-        chunks.append(raw.decode("latin-1"))
-    shown = re.findall(r"\(((?:[^()\\]|\\.)*)\)\s*Tj", "".join(chunks))
-    return " ".join(re.sub(r"\\(.)", r"\1", s) for s in shown)
 
 
 def jpeg_bytes(colour=(120, 140, 160)) -> bytes:

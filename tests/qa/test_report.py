@@ -9,26 +9,12 @@ from __future__ import annotations
 
 import csv
 import io
-import re
-import zlib
 
 import pytest
 
 from qa import report
 from qa.models import Finding
-
-
-def pdf_strings(data: bytes) -> str:
-    chunks = []
-    for m in re.finditer(rb"stream\r?\n(.*?)\r?\nendstream", data, re.S):
-        raw = m.group(1)
-        try:
-            raw = zlib.decompress(raw)
-        except zlib.error:
-            pass
-        chunks.append(raw.decode("latin-1"))
-    shown = re.findall(r"\(((?:[^()\\]|\\.)*)\)\s*Tj", "".join(chunks))
-    return " ".join(re.sub(r"\\(.)", r"\1", s) for s in shown)
+from tests.qa.pdftext import pdf_strings
 
 
 @pytest.fixture
