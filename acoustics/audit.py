@@ -20,10 +20,9 @@ from typing import Any
 
 import numpy as np
 
-from ._kernels import LABELS, SMALL_RATERS, check_finite
 from .bands import BAND_INDEX, N_BANDS
 from .leaks import FLAG_TEXT, Leak
-from .ratings import RATINGS, rating_weights
+from .ratings import LABELS, RATINGS, SMALL_RATERS, check_finite, rating_weights
 
 __all__ = ["Audit", "audit"]
 

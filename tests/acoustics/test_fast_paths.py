@@ -1,11 +1,12 @@
-"""The optimised rating, composite and audit paths equal a straightforward implementation, exactly.
+"""The vectorised rating, composite and audit paths equal the plain reference implementations, exactly.
 
-The references below follow the standards' own wording one curve at a time in plain Python integers:
-ASTM E413-22 Sections 6-7 (STC: shift the contour down 1 dB at a time until the deficiency sum is at most
-32 dB and no band is deficient by more than 8 dB), ISO 717-1:2020 Clause 4.4 (Rw: inputs reduced to 0.1 dB,
-shift in 1 dB or, for the decimal variant, 0.1 dB steps until the unfavourable sum is at most 32.0 dB) and
-Clause 4.5 Formula (1)-(2) (C, Ctr), Hopkins (2007) Eq. 4.92 (composite by energy sum), and the greedy order
-of the method notes Section 12. The fast paths (integer tenths, binary lifting on the shift, closed forms,
+The references (:mod:`acoustics._reference`) follow the standards' own wording one curve at a time in plain
+Python integers: ASTM E413-22 Sections 6-7 (STC: shift the contour down 1 dB at a time until the deficiency
+sum is at most 32 dB and no band is deficient by more than 8 dB), ISO 717-1:2020 Clause 4.4 (Rw: inputs
+reduced to 0.1 dB, shift in 1 dB or, for the decimal variant, 0.1 dB steps until the unfavourable sum is at
+most 32.0 dB) and Clause 4.5 Formula (1)-(2) (C, Ctr), ASTM E1332-22 Section 4.1 (OITC), Hopkins (2007)
+Eq. 4.92 (composite by energy sum), and the greedy order of the method notes Section 12. The fast paths
+(closed-form contour shifts in whole dB or integer tenths, one matrix product for the spectrum terms,
 speculative greedy steps) must give the same integers; tolerance zero, except that a spectrum term whose
 X_A lies within 1e-9 dB of a rounding edge is skipped (the summation order legitimately differs there).
 """
@@ -16,52 +17,13 @@ import math
 
 import numpy as np
 import pytest
+from _reference_curves import ANNEX_C, HEAVY_WALL, ISO12999_B, LIGHT_WALL
 
 import acoustics as ac
-from acoustics.spectra import _RW_SHAPE, _SPECTRA, _STC_SHAPE
+from acoustics._reference import ref_audit, ref_composite, ref_oitc, ref_rw, ref_spectrum_level, ref_stc
+from acoustics.spectra import _RW_SHAPE, _STC_SHAPE
 
 HALF = 0.5 + 1e-7  # round half up with the engine's documented nudge (acoustics.round_half_up)
-STC_BANDS = range(4, 20)  # 125-4000 Hz
-RW_BANDS = range(3, 19)  # 100-3150 Hz
-
-
-def ref_stc(curve: np.ndarray) -> int:
-    """ASTM E413: whole-dB TL, largest contour position with sum <= 32 and every deficiency <= 8."""
-    tl = [math.floor(curve[b] + HALF) for b in STC_BANDS]
-    shape = [int(v) for v in _STC_SHAPE]
-    s = min(t - c for t, c in zip(tl, shape, strict=True)) + 8
-    while True:
-        dev = [max(0, s + c - t) for t, c in zip(tl, shape, strict=True)]
-        if sum(dev) <= 32 and max(dev) <= 8:
-            return s
-        s -= 1
-
-
-def ref_rw(curve: np.ndarray, decimal: bool = False) -> float:
-    """ISO 717-1: tenths of a dB, shift the reference curve down until the unfavourable sum <= 32.0 dB."""
-    x = [math.floor(curve[b] * 10.0 + HALF) for b in RW_BANDS]
-    ref = [int(round(10 * v)) for v in _RW_SHAPE]
-    step = 1 if decimal else 10
-    u = [xi - r for xi, r in zip(x, ref, strict=True)]
-    # Start above the answer: the lowest band alone, or all 16 bands deficient, exceeds 32.0 dB beyond it.
-    s = min(min(u) + 320, (sum(u) + 320) // 16) // step * step
-    while sum(max(0, s + r - xi) for xi, r in zip(x, ref, strict=True)) > 320:
-        s -= step
-    return s / 10.0 if decimal else s // 10
-
-
-def ref_xa(curve: np.ndarray, column: int) -> float | None:
-    """X_A of spectrum column ``column`` (C, Ctr, enlarged ...) from inputs reduced to 0.1 dB, or None."""
-    spec = _SPECTRA[:, column]
-    terms = []
-    for b in range(21):
-        if np.isnan(spec[b]):
-            continue
-        if not np.isfinite(curve[b]):
-            return None
-        xb = math.floor(curve[b] * 10.0 + HALF) / 10.0
-        terms.append(10.0 ** ((spec[b] - xb) / 10.0))
-    return -10.0 * math.log10(math.fsum(terms))
 
 
 def near_edge(x: float, decimals: int) -> bool:
@@ -94,7 +56,7 @@ def curves() -> np.ndarray:
 
 
 def test_stc_equals_reference(curves):
-    """Batch STC (binary lifting on uint8 deviations) == ASTM E413 stepwise rule, every curve. Exact."""
+    """Batch STC (closed-form shift) == ASTM E413 stepwise rule, every curve. Exact."""
     got = ac.stc(curves)
     want = np.array([ref_stc(c) for c in curves])
     np.testing.assert_array_equal(got, want)
@@ -103,7 +65,7 @@ def test_stc_equals_reference(curves):
 
 @pytest.mark.parametrize("decimal", [False, True])
 def test_rw_equals_reference(curves, decimal):
-    """Batch Rw (integer tenths, lifting) == ISO 717-1 stepwise rule in 1 dB and 0.1 dB steps. Exact."""
+    """Batch Rw (closed form in integer tenths) == ISO 717-1 stepwise rule in 1 dB and 0.1 dB steps. Exact."""
     sub = curves[::3] if decimal else curves
     got = ac.rw(sub, decimal=decimal, enlarged=False).rw
     want = np.array([ref_rw(c, decimal) for c in sub])
@@ -120,7 +82,7 @@ def test_c_ctr_equal_reference(curves, enlarged):
     for i, c in enumerate(sub):
         rw = ref_rw(c)
         for col, field in ((0, got.c), (1, got.ctr)):
-            xa = ref_xa(c, col)
+            xa = ref_spectrum_level(c, col)
             if near_edge(xa, 0):
                 continue
             assert field[i] == math.floor(xa + HALF) - rw, (i, col)
@@ -140,7 +102,7 @@ def test_enlarged_terms_equal_reference():
             rw = ref_rw(c, decimal)
             for j, name in enumerate(names):
                 value = getattr(got, name)[i]
-                xa = ref_xa(c, j + 2)
+                xa = ref_spectrum_level(c, j + 2)
                 if xa is None:
                     assert np.isnan(value)
                     continue
@@ -148,6 +110,32 @@ def test_enlarged_terms_equal_reference():
                     continue
                 want = (math.floor(xa * 10 + HALF) / 10 - rw) if decimal else (math.floor(xa + HALF) - rw)
                 assert value == pytest.approx(want, abs=1e-9), (i, name)
+
+
+def test_oitc_equals_reference(curves):
+    """Batch OITC (one matrix product of band powers) == ASTM E1332 Section 4.1 summed with math.fsum,
+    to 1e-9 dB unrounded; integer OITC equal away from rounding edges."""
+    sub = curves[::5]
+    got = ac.oitc(sub, decimal=True)
+    raw = np.array([ref_oitc(c) for c in sub])
+    np.testing.assert_allclose(got, np.floor(raw * 10 + HALF) / 10, atol=1e-9)
+    whole = ac.oitc(sub)
+    keep = np.array([not near_edge(v, 0) for v in raw])
+    np.testing.assert_array_equal(whole[keep], np.floor(raw[keep] + HALF))
+
+
+def test_references_reproduce_published_ratings():
+    """The plain references themselves give the standards' printed values (so the comparison is not
+    circular): ISO 717-1:2020 Annex C Table C.1 -> Rw 30 (C -2, Ctr -3); Table E.1 heavy wall -> Rw 53,
+    one-decimal 53.4; lightweight wall -> Rw 33; STC 53 and 33 for the same curves (method notes C5, C7);
+    ISO 12999-1:2020 Annex B -> 57.4. Exact."""
+    assert ref_rw(ANNEX_C) == 30
+    assert math.floor(ref_spectrum_level(ANNEX_C, 0) + HALF) - 30 == -2
+    assert math.floor(ref_spectrum_level(ANNEX_C, 1) + HALF) - 30 == -3
+    assert (ref_rw(HEAVY_WALL), ref_rw(HEAVY_WALL, decimal=True), ref_rw(LIGHT_WALL)) == (53, 53.4, 33)
+    assert (ref_stc(HEAVY_WALL), ref_stc(LIGHT_WALL)) == (53, 33)
+    assert ref_rw(ISO12999_B, decimal=True) == 57.4
+    assert round(ref_oitc(np.full(21, 37.0)), 1) == pytest.approx(37.0, abs=0.05)
 
 
 def test_one_curve_and_shapes_match_batch(curves):
@@ -176,15 +164,6 @@ def test_error_in_large_batch_names_the_band():
         ac.stc(x)
 
 
-def ref_composite(areas, tls, added):
-    total = sum(areas)
-    out = []
-    for b in range(21):
-        p = math.fsum(s * 10.0 ** (-t[b] / 10.0) for s, t in zip(areas, tls, strict=True)) + added[b]
-        out.append(-10.0 * math.log10(p / total))
-    return np.array(out)
-
-
 def test_composite_equals_reference_including_tau_above_one():
     """composite() == energy sum per band, also for negative element TL (tau > 1). rtol 1e-12."""
     rng = np.random.default_rng(3)
@@ -203,41 +182,9 @@ def test_composite_equals_reference_including_tau_above_one():
 RATERS = {"stc": ref_stc, "rw": ref_rw}
 
 
-def ref_audit(tl, s, leaks, rating):
-    """Greedy audit written plainly: rate every remaining finding fixed next, best rating, then most
-    weighted power, then the earliest; same per-band arithmetic as the engine (so TLs agree bitwise)."""
-    rater = RATERS[rating]
-    amat = np.array([lk.area for lk in leaks])
-    n = len(leaks)
-    base = s * 10.0 ** (-tl / 10.0)
-    total = base + amat.sum(axis=0)
-    weights = ac.rating_weights(rating)
-    wpow = amat @ weights
-    as_found = rater(-10.0 * np.log10(total * (1.0 / s)))
-    designed = rater(tl)
-    gain = [rater(-10.0 * np.log10((total - a) * (1.0 / s))) - as_found for a in amat] if n > 1 else []
-    left = total.copy()
-    alive = list(range(n))
-    order, after, after_tl = [], [], []
-    while alive:
-        if len(alive) == 1:
-            j = alive[0]
-            order.append(j)
-            after.append(designed)
-            after_tl.append(tl)
-            break
-        cands = []
-        for j in alive:
-            t = np.log10((left - amat[j]) * (1.0 / s))
-            t *= -10.0
-            cands.append((rater(t), wpow[j], -j, t))
-        r, _, negj, t = max(cands, key=lambda c: c[:3])
-        order.append(-negj)
-        after.append(r)
-        after_tl.append(t)
-        alive.remove(-negj)
-        left -= amat[-negj]
-    return designed, as_found, gain, order, after, np.array(after_tl)
+def plain_audit(tl, s, leaks, rating):
+    r = ref_audit(tl, s, np.array([lk.area for lk in leaks]), ac.rating_weights(rating), rating)
+    return r["designed"], r["as_found"], r["gain"], r["order"], r["after"], r["after_tl"]
 
 
 def random_findings(rng, count):
@@ -267,7 +214,7 @@ def test_audit_equals_plain_greedy(rating):
         if not findings:
             assert got.designed == got.as_found == RATERS[rating](tl)
             continue
-        designed, as_found, gain, order, after, after_tl = ref_audit(tl, s, findings, rating)
+        designed, as_found, gain, order, after, after_tl = plain_audit(tl, s, findings, rating)
         assert (got.designed, got.as_found) == (designed, as_found)
         if len(findings) > 1:
             assert got.gain.tolist() == gain
@@ -282,6 +229,6 @@ def test_audit_on_negative_band_wall():
     tl = random_curves(1, 7)[0] - 60.0
     findings = random_findings(rng, 12)
     got = ac.audit(tl, 3.0, findings, rating="stc")
-    designed, as_found, _, order, after, _ = ref_audit(tl, 3.0, findings, "stc")
+    designed, as_found, _, order, after, _ = plain_audit(tl, 3.0, findings, "stc")
     assert designed < 0
     assert (got.designed, got.as_found, got.order, got.after.tolist()) == (designed, as_found, order, after)
