@@ -1,10 +1,12 @@
 """Photo intake: verify the file is an image, orient it, strip location, keep the capture time, thumbnail it.
 
-The walk downscales photos on the phone and sends a plain JPEG with no metadata; such a file is
-kept byte for byte (so a resumed upload can be checked against what the device sent). Anything
-else (EXIF with GPS or an orientation tag, PNG, HEIC, oversize, trailing data) is stored as a
-freshly encoded JPEG made from decoded pixels, so nothing the device sent survives but the
-pixels, their orientation and the capture time.
+Every stored photo is a freshly encoded JPEG made from the decoded pixels, whatever the device sent:
+nothing survives but the pixels, turned upright by their orientation tag, and the capture time
+(written back as the one EXIF tag ``DateTime``). So no metadata block can carry a location through:
+not an EXIF GPS directory, not an XMP packet (``exif:GPSLatitude``), not an IPTC record in a
+Photoshop block, not a second EXIF block behind a broken first one, not a JPEG comment, not the text
+chunks of a PNG. What the device sent is identified by ``received_sha256`` (a resumed upload is
+checked against that), never by the stored bytes.
 """
 
 from __future__ import annotations
@@ -82,6 +84,8 @@ def clean_photo(data: bytes) -> CleanPhoto:
         with warnings.catch_warnings():
             # Between the limit and twice it Pillow only warns; here a warning is a refusal.
             warnings.simplefilter("error", Image.DecompressionBombWarning)
+            # A broken EXIF block is read as far as it goes; none of it is stored, so it is no error.
+            warnings.filterwarnings("ignore", message="Corrupt EXIF data", category=UserWarning)
             with Image.open(io.BytesIO(data)) as probe:
                 fmt = probe.format or ""
                 if fmt not in ACCEPTED_FORMATS:
@@ -104,25 +108,22 @@ def clean_photo(data: bytes) -> CleanPhoto:
     except (UnidentifiedImageError, OSError, SyntaxError, ValueError) as exc:
         raise PhotoError(f"image: not a readable image ({exc.__class__.__name__})") from None
 
-    keep_as_sent = (
-        fmt == "JPEG"
-        and len(exif) == 0
-        and max(img.width, img.height) <= settings.PHOTO_LONG_EDGE
-        and data.rstrip(b"\x00").endswith(b"\xff\xd9")
-        and img.mode in ("RGB", "L")
-    )
     rgb.thumbnail((settings.PHOTO_LONG_EDGE, settings.PHOTO_LONG_EDGE), Image.Resampling.LANCZOS)
+    # Pillow carries some of the source's metadata in ``info`` through convert and copy, and writes a
+    # JPEG comment from it on save; the stored image starts from an empty ``info``.
+    rgb.info = {}
     kept = Image.Exif()
     if captured is not None:
         # Only the capture time goes back in: no GPS, no maker notes, no serial numbers.
         kept[0x0132] = captured.strftime("%Y:%m:%d %H:%M:%S")
     out = io.BytesIO()
-    rgb.save(out, "JPEG", quality=85, optimize=True, exif=kept.tobytes())
+    rgb.save(out, "JPEG", quality=85, optimize=True, exif=kept.tobytes() if len(kept) else b"")
     thumb = rgb.copy()
+    thumb.info = {}
     thumb.thumbnail((settings.PHOTO_THUMB_EDGE, settings.PHOTO_THUMB_EDGE), Image.Resampling.LANCZOS)
     tout = io.BytesIO()
     thumb.save(tout, "JPEG", quality=75)
-    image_bytes = data if keep_as_sent else out.getvalue()
+    image_bytes = out.getvalue()
     return CleanPhoto(
         image=image_bytes,
         thumbnail=tout.getvalue(),

@@ -1,9 +1,12 @@
-"""Test settings: plain static storage, because the live test server serves static files
-from the finders, which do not know the hashed names of the manifest storage."""
+"""Test settings: debug-mode defaults (the development key, local hosts) and plain static storage,
+because the live test server serves static files from the finders, which do not know the hashed
+names of the manifest storage. pytest-django still runs each test with ``DEBUG = False``."""
 
 import os
 
 os.environ.setdefault("DJANGO_ALLOW_ASYNC_UNSAFE", "true")  # Playwright's sync API shares the test thread
+# Debug is off unless asked for (qa/settings.py); the test run asks, as a developer's machine would.
+os.environ.setdefault("SEALWALK_DEBUG", "1")
 
 from .settings import *  # noqa: E402,F403
 from .settings import STORAGES  # noqa: E402

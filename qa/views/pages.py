@@ -15,7 +15,7 @@ from ..choices import FindingStatus
 from ..impact import audit_summary, audits_for_walls
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from .audit import job_overview, wall_overview
-from .login_throttle import LoginThrottleMixin
+from ..login_throttle import LoginThrottleMixin
 
 OPEN = [FindingStatus.OPEN, FindingStatus.REOPENED]
 

@@ -9,6 +9,7 @@ DateTimeOriginal 0x9003 in the Exif IFD 0x8769, DateTime 0x0132.
 
 from __future__ import annotations
 
+import hashlib
 import io
 import struct
 import zlib
@@ -83,14 +84,19 @@ def test_capture_time_with_offset_is_kept_as_an_aware_time():
     assert clean.captured_at == datetime(2026, 11, 16, 7, 41, 7, tzinfo=UTC)
 
 
-def test_plain_phone_jpeg_is_kept_byte_for_byte():
+def test_plain_phone_jpeg_is_re_encoded_with_nothing_added():
+    """Every stored photo is re-encoded, even a metadata-free JPEG (a block the intake did not know
+    about would otherwise pass); what the device sent is identified by ``received_sha256``."""
     out = io.BytesIO()
     half_red().save(out, "JPEG", quality=80)
     raw = out.getvalue()
     clean = clean_photo(raw)
-    assert clean.image == raw
-    assert clean.sha256 == clean.received_sha256
+    assert clean.image != raw
+    assert clean.received_sha256 == hashlib.sha256(raw).hexdigest() != clean.sha256
     assert clean.captured_at is None
+    with Image.open(io.BytesIO(clean.image)) as img:
+        assert img.size == (400, 200) and len(img.getexif()) == 0
+        assert img.convert("RGB").getpixel((100, 100))[0] > 200  # same picture: red on the left
 
 
 def test_png_is_stored_as_jpeg():
