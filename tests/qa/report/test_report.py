@@ -13,8 +13,8 @@ import io
 import pytest
 
 from qa import report
-from qa.report import content, pdf
 from qa.models import Finding
+from qa.report import content, pdf
 from tests.qa.pdftext import pdf_strings
 
 
