@@ -12,7 +12,7 @@ from rest_framework.response import Response
 from rest_framework.throttling import ScopedRateThrottle
 from rest_framework.views import APIView
 
-from ..views import login_throttle
+from .. import login_throttle
 
 
 class ObtainToken(ObtainAuthToken):

@@ -15,7 +15,7 @@ from ..audit.presentation import job_overview, wall_overview
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import FindingStatus
 from ..models import Finding, Member, Photo, SealPoint, Wall
-from .login_throttle import LoginThrottleMixin
+from ..login_throttle import LoginThrottleMixin
 
 OPEN = [FindingStatus.OPEN, FindingStatus.REOPENED]
 

@@ -289,7 +289,7 @@ def test_login_locks_after_repeated_failures(world, client, settings):
 
 
 def test_login_lock_is_case_insensitive_and_in_the_shared_cache(world, client, settings):
-    from qa.views import login_throttle
+    from qa import login_throttle
 
     settings.LOGIN_FAILURE_LIMIT = 3
     for name in ("insp", "INSP", "Insp"):

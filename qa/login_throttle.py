@@ -12,6 +12,10 @@ LOGIN_FAILURE_WINDOW  window and lock-out length, seconds (default 900).
 
 Notes
 -----
+The user name is counted the way Django's sign-in form reads it: Unicode NFKC normalisation (what
+``UsernameField`` and ``AbstractBaseUser.normalize_username`` apply), so look-alike spellings such as a
+fullwidth ``ｄoors`` count against ``doors``; then case-folded, so ``Doors`` counts there too.
+
 The address is ``REMOTE_ADDR``. Behind a reverse proxy the proxy must pass the client address
 there (gunicorn's ``--forwarded-allow-ips`` with the proxy's address); a bare ``X-Forwarded-For``
 header is never trusted, because a client can write anything in it.
@@ -20,6 +24,7 @@ header is never trusted, because a client can write anything in it.
 from __future__ import annotations
 
 import hashlib
+import unicodedata
 
 from django.conf import settings
 from django.core.cache import cache
@@ -39,12 +44,28 @@ def window_s() -> int:
     return int(getattr(settings, "LOGIN_FAILURE_WINDOW", DEFAULT_WINDOW_S))
 
 
+def normalise_username(username: str) -> str:
+    """The user name as the throttle counts it: NFKC, case-folded, surrounding spaces removed.
+
+    NFKC is the normalisation Django's authentication applies (``UsernameField.to_python``); case
+    folding can produce characters NFKC changes again (``ß`` → ``ss`` is fine, but some folds are
+    not NFKC-stable), so NFKC is applied once more after it, as Unicode's NFKC_Casefold does.
+
+    References
+    ----------
+    .. [1] Unicode Standard Annex #15, Unicode Normalization Forms.
+    .. [2] Unicode Standard, section 3.13, definition D145 (NFKC_Casefold).
+    """
+    folded = unicodedata.normalize("NFKC", unicodedata.normalize("NFKC", username).casefold())
+    return folded.strip()
+
+
 def throttle_key(username: str, address: str) -> str:
-    """Cache key for one user name (case-folded) and one client address.
+    """Cache key for one user name (normalised by :func:`normalise_username`) and one client address.
 
     Hashed so that a user name with spaces or odd characters is a valid cache key everywhere.
     """
-    digest = hashlib.sha256(f"{username.strip().casefold()}|{address}".encode()).hexdigest()
+    digest = hashlib.sha256(f"{normalise_username(username)}|{address}".encode()).hexdigest()
     return f"login-fail:{digest}"
 
 
