@@ -55,7 +55,7 @@ class CurveSource(models.TextChoices):
 
 
 class GapKind(models.TextChoices):
-    """How a defect lets sound through; each maps to one engine model (qa/impact.py)."""
+    """How a defect lets sound through; each maps to one engine model (qa/audit/finding_leaks.py)."""
 
     SLIT = "slit", "Slit (long narrow gap)"
     HOLE = "hole", "Hole"
@@ -100,8 +100,16 @@ class FindingStatus(models.TextChoices):
     REOPENED = "reopened", "Reopened"
 
 
+#: Statuses in which a crew still has work to do.
+OPEN_STATUSES = (FindingStatus.OPEN, FindingStatus.REOPENED)
 #: Statuses in which a finding still costs the wall (as verified).
 UNRESOLVED = (FindingStatus.OPEN, FindingStatus.REOPENED, FindingStatus.FIXED)
+#: The status groups people filter by (pages, the walk's bundle): name -> statuses.
+STATUS_GROUPS = {
+    "open": OPEN_STATUSES,
+    "fixed": (FindingStatus.FIXED,),
+    "verified": (FindingStatus.VERIFIED,),
+}
 
 
 class OpeningKind(models.TextChoices):

@@ -15,8 +15,8 @@ from django.contrib.auth import get_user_model
 from django.db import transaction
 from PIL import Image, ImageDraw, ImageFilter
 
+from .audit import resolve_wall_type_curve
 from .choices import FindingStatus, PhotoPurpose, Role, SealStatus
-from .impact import resolve_wall_type_curve
 from .models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 
 JOB_NAME = "Harbourline Residences"

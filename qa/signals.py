@@ -2,7 +2,7 @@
 
 A wall's audit depends on its findings, its openings, the wall itself (size, target, scheme) and its
 wall type (curve, layers, thickness). Every save or delete of one of them replaces the matching
-stamp in the shared cache (:func:`qa.impact.invalidate_wall`, :func:`qa.impact.invalidate_wall_type`),
+stamp in the shared cache (:func:`qa.audit.invalidate_wall`, :func:`qa.audit.invalidate_wall_type`),
 so the next read recomputes. Queryset ``update()`` and ``bulk_create()`` send no signals: code that
 uses them must call the invalidate functions itself.
 """
@@ -13,7 +13,7 @@ from django.db import transaction
 from django.db.models.signals import post_delete, post_init, post_save
 from django.dispatch import receiver
 
-from . import impact
+from .audit import cache
 from .models import Finding, Opening, Wall, WallType
 
 
@@ -33,26 +33,26 @@ def _remember_wall(sender, instance, **kwargs):
 @receiver(post_save, sender=Finding)
 @receiver(post_delete, sender=Finding)
 def _finding_changed(sender, instance, **kwargs):
-    _later(impact.invalidate_wall, instance.wall_id)
+    _later(cache.invalidate_wall, instance.wall_id)
     before = getattr(instance, "_audit_wall_id", None)
     if before and before != instance.wall_id:
-        _later(impact.invalidate_wall, before)
+        _later(cache.invalidate_wall, before)
     instance._audit_wall_id = instance.wall_id
 
 
 @receiver(post_save, sender=Opening)
 @receiver(post_delete, sender=Opening)
 def _opening_changed(sender, instance, **kwargs):
-    _later(impact.invalidate_wall, instance.wall_id)
+    _later(cache.invalidate_wall, instance.wall_id)
 
 
 @receiver(post_save, sender=Wall)
 @receiver(post_delete, sender=Wall)
 def _wall_changed(sender, instance, **kwargs):
-    _later(impact.invalidate_wall, instance.pk)
+    _later(cache.invalidate_wall, instance.pk)
 
 
 @receiver(post_save, sender=WallType)
 @receiver(post_delete, sender=WallType)
 def _wall_type_changed(sender, instance, **kwargs):
-    _later(impact.invalidate_wall_type, instance.pk)
+    _later(cache.invalidate_wall_type, instance.pk)

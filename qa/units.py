@@ -1,7 +1,9 @@
 """Units for input and display. Everything is stored in SI; each job picks metric or imperial.
 
-Three quantities: ``size`` (wall and opening dimensions: m or ft), ``gap`` (gap widths, lengths,
-diameters, depths: mm or in) and ``area`` (affected areas: m² or ft²).
+Four quantities: ``size`` (wall and opening dimensions: m or ft), ``gap`` (gap widths, lengths,
+diameters, depths: mm or in), ``area`` (affected wall areas: m² or ft²) and ``small_area`` (open
+areas of boxes and gaps: cm² or in²). This module is the one source of these factors and symbols;
+the walk receives them in its bundle.
 """
 
 from __future__ import annotations
@@ -12,12 +14,12 @@ FOOT = 0.3048  # m, exact (international foot, 1959)
 INCH = 0.0254  # m, exact
 
 FACTORS = {
-    Units.METRIC: {"size": 1.0, "gap": 1e-3, "area": 1.0},
-    Units.IMPERIAL: {"size": FOOT, "gap": INCH, "area": FOOT**2},
+    Units.METRIC: {"size": 1.0, "gap": 1e-3, "area": 1.0, "small_area": 1e-4},
+    Units.IMPERIAL: {"size": FOOT, "gap": INCH, "area": FOOT**2, "small_area": INCH**2},
 }
 SYMBOLS = {
-    Units.METRIC: {"size": "m", "gap": "mm", "area": "m²"},
-    Units.IMPERIAL: {"size": "ft", "gap": "in", "area": "ft²"},
+    Units.METRIC: {"size": "m", "gap": "mm", "area": "m²", "small_area": "cm²"},
+    Units.IMPERIAL: {"size": "ft", "gap": "in", "area": "ft²", "small_area": "in²"},
 }
 
 #: Which quantity each stored SI field is.

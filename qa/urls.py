@@ -24,8 +24,8 @@ qa_patterns = [
 ]
 
 qa_patterns += [
-    path("", include("qa.views.walk_urls")),
-    path("", include("qa.views.audit_urls")),
+    path("", include("qa.walk.urls")),
+    path("", include("qa.views.urls")),
 ]
 
 urlpatterns = [

@@ -7,8 +7,8 @@ import math
 from django.contrib.auth import get_user_model
 from rest_framework import serializers
 
+from ..audit.curves import curve_errors, resolve_wall_type_curve
 from ..choices import Role
-from ..impact import curve_errors
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField
@@ -140,8 +140,6 @@ class WallTypeSerializer(serializers.ModelSerializer):
         return code
 
     def validate(self, attrs):
-        from ..impact import resolve_wall_type_curve
-
         merged = {
             f: attrs.get(f, getattr(self.instance, f, None))
             for f in ("tl", "tl_source", "layers", "rating_scheme")

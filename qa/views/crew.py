@@ -21,11 +21,11 @@ from django.views.decorators.http import require_POST
 
 from ..access import job_for, membership, require
 from ..cautions import GENERAL_CAUTIONS, cautions_for
+from ..choices import OPEN_STATUSES as OPEN
 from ..choices import FindingStatus, PhotoPurpose, Trade
 from ..models import Event, Finding, Photo
 from ..models.findings import TransitionError
 from ..photos import PhotoError, clean_photo
-from .audit import OPEN
 
 NOTE_MAX = 2000
 

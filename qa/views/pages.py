@@ -10,14 +10,14 @@ from django.shortcuts import render
 
 from .. import units
 from ..access import can, job_for
+from ..audit import audit_summary, audits_for_walls
+from ..audit.presentation import job_overview, wall_overview
 from ..cautions import GENERAL_CAUTIONS, cautions_for
-from ..choices import FindingStatus
-from ..impact import audit_summary, audits_for_walls
+from ..choices import OPEN_STATUSES, FindingStatus
 from ..models import Finding, Member, Photo, SealPoint, Wall
-from .audit import job_overview, wall_overview
 from ..login_throttle import LoginThrottleMixin
 
-OPEN = [FindingStatus.OPEN, FindingStatus.REOPENED]
+OPEN = OPEN_STATUSES
 
 
 class LoginView(LoginThrottleMixin, auth_views.LoginView):

@@ -48,7 +48,7 @@ def build_job(n_walls: int = 300, n_findings: int = 1000, seed: int = 1, passwor
     """
     from django.contrib.auth import get_user_model
 
-    from qa.impact import resolve_wall_type_curve
+    from qa.audit import resolve_wall_type_curve
     from qa.models import Finding, Job, Member, Opening, Wall, WallType
 
     rng = random.Random(seed)

@@ -38,7 +38,7 @@ def login(page, base_url: str, username: str) -> None:
 
 def pick_finding(job, trade: str):
     """An open finding of ``trade`` that is step 1 of its wall's fix-first order and buys points."""
-    from qa.impact import audits_for_job, fix_steps
+    from qa.audit import audits_for_job, fix_steps
     from qa.models import Finding
 
     audits = audits_for_job(job)

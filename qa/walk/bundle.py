@@ -17,11 +17,11 @@ from django.db.models import Prefetch
 from django.urls import reverse
 from django.utils import timezone
 
-from . import impact, units
-from .api.serializers import FindingSerializer
-from .cautions import CAUTIONS, GENERAL_CAUTIONS
-from .choices import Face, FindingStatus, GapKind, SealStatus, Trade
-from .models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+from .. import audit, units
+from ..api.serializers import FindingSerializer
+from ..cautions import CAUTIONS, GENERAL_CAUTIONS
+from ..choices import Face, FindingStatus, GapKind, SealStatus, Trade
+from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 
 BUNDLE_FORMAT = 1
 _GAP_FIELDS = {
@@ -114,16 +114,9 @@ def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
     return _plain(out)
 
 
-def _audits(job: Job, walls: list[Wall]) -> dict | None:
-    """Last leak audits per wall from qa.impact, when that module provides them (keyed by wall id)."""
-    if hasattr(impact, "audits_for_walls"):
-        audits = impact.audits_for_walls(walls)
-    elif hasattr(impact, "audits_for_job"):
-        audits = impact.audits_for_job(job)
-    elif hasattr(impact, "audit_summary"):
-        audits = {w.id: impact.audit_summary(w) for w in walls}
-    else:
-        return None
+def _audits(job: Job, walls: list[Wall]) -> dict:
+    """The last leak audit of each wall, slimmed for the phone (keyed by wall id)."""
+    audits = audit.audits_for_walls(walls)
     client_ids = dict(Finding.objects.filter(job=job).values_list("id", "client_id"))
     client_ids = {k: str(v) for k, v in client_ids.items()}
     return {str(k): _slim_audit(v, client_ids) for k, v in (audits or {}).items() if isinstance(v, dict)}

@@ -1,4 +1,4 @@
-"""The adapter between the record and the engine (qa/impact.py).
+"""The adapter between the record and the engine (qa/audit/summary.py).
 
 Checks: a wall's audit equals a direct ``acoustics.audit`` on the same inputs; each finding kind maps
 to the engine model named in DESIGN.md; openings enter the designed curve by area (Hopkins 2007,
@@ -13,7 +13,7 @@ import numpy as np
 import pytest
 
 import acoustics
-from qa import impact
+from qa.audit import cache, curves, finding_leaks, summary
 from qa.models import Finding, Opening, Wall
 
 LAYERS = {
@@ -39,7 +39,7 @@ def add(world, **kw):
 
 
 def key(wall):
-    return impact.audit_keys([wall])[wall.pk]
+    return cache.audit_keys([wall])[wall.pk]
 
 
 def test_wall_audit_equals_direct_engine_audit(world):
@@ -49,9 +49,9 @@ def test_wall_audit_equals_direct_engine_audit(world):
     add(world, kind="slit", at_edge=True, fill="fibre", width_m=0.004, length_m=2.0)
     add(world, kind="open_area", width_m=None, length_m=None, area_m2=0.002, face="a")
     wall = world.wall
-    tl, area, leaks, meta = impact.wall_inputs(wall)
+    tl, area, leaks, meta = summary.wall_inputs(wall)
     direct = acoustics.audit(tl, area, leaks, rating="stc", target=50)
-    s = impact.audit_summary(wall)
+    s = summary.audit_summary(wall)
     assert s["designed"] == direct.designed == 50  # FLAT_50 test curve rates STC 50 (tests/conftest.py)
     assert s["as_found"] == direct.as_found
     assert s["order"] == [meta["finding_ids"][i] for i in direct.order]
@@ -82,16 +82,16 @@ def test_kinds_map_to_engine_models(world):
         ),
         (
             add(world, fill="skin"),
-            acoustics.skin_gap(0.006, 1.0, t, surface_density=impact.SKIN_SURFACE_DENSITY),
+            acoustics.skin_gap(0.006, 1.0, t, surface_density=finding_leaks.SKIN_SURFACE_DENSITY),
         ),
         (
             add(world, kind="hole", face="a", width_m=None, length_m=None, diameter_m=0.02),
             acoustics.one_face_gap_from_lab(
-                np.array(world.wall_type.tl, float), acoustics.hole(0.02, impact.DEFAULT_BOARD_M)
+                np.array(world.wall_type.tl, float), acoustics.hole(0.02, finding_leaks.DEFAULT_BOARD_M)
             ),
         ),
     ]
-    _tl, _area, leaks, meta = impact.wall_inputs(wall)
+    _tl, _area, leaks, meta = summary.wall_inputs(wall)
     by_id = dict(zip(meta["finding_ids"], leaks, strict=True))
     for finding, expected in cases:
         np.testing.assert_allclose(by_id[finding.pk].area, expected.area, rtol=1e-12, err_msg=finding.kind)
@@ -99,16 +99,16 @@ def test_kinds_map_to_engine_models(world):
 
 def test_predicted_wall_type_uses_layers_and_lab_type_cannot_model_a_bridge(world):
     bridge = add(world, kind="bridge", width_m=None, length_m=None, count=2)
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["unmodelled"] == [{"finding": bridge.pk, "reason": s["unmodelled"][0]["reason"]}]
     assert "layers" in s["unmodelled"][0]["reason"] and "not_modelled" in s["flags"]
     wt = world.wall_type
     wt.layers, wt.tl_source, wt.thickness_m = LAYERS, "predicted", 0.172
-    wt.tl = impact.predict_curve(LAYERS)
+    wt.tl = curves.predict_curve(LAYERS)
     wt.save()
     one_face = add(world, kind="hole", face="b", width_m=None, length_m=None, diameter_m=0.02)
     wall = Wall.objects.select_related("wall_type").get(pk=world.wall.pk)
-    _tl, _a, leaks, meta = impact.wall_inputs(wall)
+    _tl, _a, leaks, meta = summary.wall_inputs(wall)
     by_id = dict(zip(meta["finding_ids"], leaks, strict=True))
     asm = acoustics.Assembly.from_dict(LAYERS)
     expected = acoustics.one_face_gap(asm, 1, acoustics.hole(0.02, asm.leaves[1].thickness))
@@ -122,14 +122,14 @@ def test_predicted_wall_type_uses_layers_and_lab_type_cannot_model_a_bridge(worl
 def test_door_known_by_rating_enters_as_contour(world):
     """Composite of wall and door by area (Hopkins 2007, Eq. 4.92); the door curve is the STC contour."""
     Opening.objects.create(wall=world.wall, kind="door", width_m=0.9, height_m=2.1, rating=30)
-    tl, area, _leaks, meta = impact.wall_inputs(world.wall)
+    tl, area, _leaks, meta = summary.wall_inputs(world.wall)
     door = acoustics.contour("stc", 30)
     expected = acoustics.composite(
         [area - 1.89, 1.89], np.vstack([np.array(world.wall_type.tl, float), door])
     )
     np.testing.assert_allclose(tl, expected, equal_nan=True)
     assert "opening_rating_contour" in meta["flags"]
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["designed"] < 50  # an STC 30 door pulls an STC 50 wall down
 
 
@@ -143,9 +143,9 @@ def test_cache_invalidated_by_each_change(world, change):
         if change == "reopen":
             f.verify(world.inspector)
     before_key = key(world.wall)
-    before = impact.audit_summary(world.wall)
+    before = summary.audit_summary(world.wall)
     assert (
-        impact.audit_summary(world.wall) is not None and key(world.wall) == before_key
+        summary.audit_summary(world.wall) is not None and key(world.wall) == before_key
     )  # stable when unchanged
     if change == "add":
         add(world, width_m=0.01)
@@ -170,7 +170,7 @@ def test_cache_invalidated_by_each_change(world, change):
         world.wall_type.save()
     wall = Wall.objects.select_related("wall_type").get(pk=world.wall.pk)
     assert key(wall) != before_key
-    after = impact.audit_summary(wall)
+    after = summary.audit_summary(wall)
     changed = {
         "add": after["as_found"] < before["as_found"],
         "edit": after["as_found"] < before["as_found"],
@@ -187,36 +187,36 @@ def test_cache_invalidated_by_each_change(world, change):
 
 def test_fixed_counts_as_reported_not_as_verified(world):
     f = add(world, width_m=0.01, length_m=2.0)
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["as_found"] == s["walked"] == s["reported"]["as_found"] < s["designed"]
     f.mark_fixed(world.drywaller, "sealed")
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["reported"]["as_found"] == s["designed"]  # as reported: the only leak is gone
     assert s["as_found"] == s["walked"] < s["designed"]  # as verified: it still costs
     assert [r["finding"] for r in s["rows"]] == [f.pk] and s["rows"][0]["status"] == "fixed"
     f.verify(world.inspector)
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["as_found"] == s["designed"] and s["walked"] < s["designed"] and s["rows"] == []
 
 
 def test_warm_audit_needs_no_query(world, django_assert_num_queries):
     add(world)
-    impact.audit_summary(world.wall)
+    summary.audit_summary(world.wall)
     with django_assert_num_queries(0):
-        impact.audit_summary(world.wall)
+        summary.audit_summary(world.wall)
 
 
 def test_wall_without_curve_reports_an_error_not_a_crash(world):
     world.wall_type.tl = []
     world.wall_type.save()
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["designed"] is None and "no TL curve" in s["error"]
 
 
 def test_rw_wall_names_c_and_ctr(world):
     world.wall.rating_scheme = "rw"
     world.wall.save()
-    s = impact.audit_summary(world.wall)
+    s = summary.audit_summary(world.wall)
     assert s["rating_name"] == "Rw" and set(s["designed_terms"]) == {"c", "ctr"}
     r = acoustics.rw(np.array(world.wall_type.tl, float))
     assert s["designed"] == r.rw and s["designed_terms"] == {"c": r.c, "ctr": r.ctr}

@@ -6,8 +6,7 @@ SHA-256 (:func:`content_sha256`, canonical JSON) is what the owner signs: a late
 record gives another hash, so the signed report shows as out of date. The PDF is drawn from the
 same content, so what is signed is what is printed.
 
-The PDF drawing lives in :mod:`qa.report_pdf`; :func:`render_pdf` and :func:`pdf_text` stay importable
-from here.
+The PDF drawing lives in :mod:`qa.report.pdf`.
 """
 
 from __future__ import annotations
@@ -21,12 +20,12 @@ from datetime import datetime
 
 from django.utils import timezone
 
-from . import units
-from .cautions import CAUTIONS, GENERAL_CAUTIONS
-from .choices import FindingStatus
-from .impact import audits_for_walls, fix_steps
-from .models import Event, Finding, Photo, Wall
-from .report_pdf import pdf_text, render_pdf  # noqa: F401  (re-exported: they lived here before the split)
+from .. import units
+from ..audit import audits_for_walls, fix_steps
+from ..audit.presentation import finding_size
+from ..cautions import CAUTIONS, GENERAL_CAUTIONS
+from ..choices import FindingStatus
+from ..models import Event, Finding, Photo, Wall
 
 #: Spreadsheet programs run a cell starting with one of these as a formula (CSV injection).
 FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
@@ -42,8 +41,6 @@ def _when(moment: datetime | None) -> str:
 
 def size_text(f, u: str) -> str:
     """A finding's recorded size in the job's units."""
-    from .views.audit import finding_size
-
     return finding_size(f, u)
 
 

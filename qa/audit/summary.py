@@ -6,16 +6,10 @@ and reports. Audits are cached per wall through Django's cache framework (never 
 the key carries a stamp per wall and per wall type, and :mod:`qa.signals` replaces a stamp when
 any input of the wall changes (findings, openings, the wall, its wall type).
 
-The adapter is split by feature; every name below stays importable from here:
-
-- :mod:`qa.curves`: stored TL curves (``curve_errors``, ``rate_curve``, ``resolve_wall_type_curve``,
-  ``predict_curve``);
-- :mod:`qa.finding_leaks`: one finding as an engine leak (``finding_leak``, ``Unmodelled``);
-- :mod:`qa.audit_cache`: stamps, invalidation and cached lookups (``audits_for_walls``,
-  ``audits_for_job``, ``invalidate_wall``, ``invalidate_wall_type``);
-- :mod:`qa.fix_order`: a summary's fix-first steps (``fix_steps``);
-- here: a wall's engine inputs (:func:`wall_inputs`) and its audit summary (:func:`compute_summary`,
-  :func:`audit_summary`).
+The audit package is split by feature: :mod:`.curves` (stored TL curves), :mod:`.finding_leaks`
+(one finding as an engine leak), :mod:`.cache` (stamps and invalidation), :mod:`.fix_order` (a
+summary's fix-first steps), :mod:`.chart` (chart data), :mod:`.presentation` (texts and page
+contexts); this module builds a wall's engine inputs and its audit summary, cached per wall.
 
 Three views of one wall (finding statuses, :class:`qa.choices.FindingStatus`):
 
@@ -35,37 +29,18 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable
 from typing import Any
 
 import numpy as np
+from django.core.cache import cache
+from django.db.models import Prefetch, prefetch_related_objects
 
-from .audit_cache import (  # re-exported: these lived here before the split
-    AUDIT_TIMEOUT,  # noqa: F401
-    ENGINE_VERSION,
-    audit_keys,  # noqa: F401
-    audits_for_job,  # noqa: F401
-    audits_for_walls,
-    invalidate_wall,  # noqa: F401
-    invalidate_wall_type,  # noqa: F401
-)
-from .curves import (  # re-exported: these lived here before the split
-    N_BANDS,  # noqa: F401
-    TL_RANGE,  # noqa: F401
-    curve_errors,  # noqa: F401
-    predict_curve,  # noqa: F401
-    rate_curve,  # noqa: F401
-    resolve_wall_type_curve,  # noqa: F401
-    tl_array,
-)
-from .finding_leaks import (  # re-exported: these lived here before the split
-    DEFAULT_BOARD_M,  # noqa: F401
-    FIBRE_FLOW_RESISTIVITY,  # noqa: F401
-    SKIN_SURFACE_DENSITY,  # noqa: F401
-    Unmodelled,
-    _Context,
-    finding_leak,
-)
-from .fix_order import fix_steps  # noqa: F401  (re-exported: it lived here before the split)
+from ..choices import UNRESOLVED, FindingStatus
+from ..models import Finding, Opening, Wall
+from .cache import AUDIT_TIMEOUT, ENGINE_VERSION, audit_keys
+from .curves import tl_array
+from .finding_leaks import Unmodelled, WallContext, finding_leak
 
 #: Words for the flags this adapter adds on top of :data:`acoustics.FLAG_TEXT`.
 EXTRA_FLAG_TEXT = {
@@ -164,12 +139,10 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None):
     """
     import acoustics
 
-    from .choices import UNRESOLVED
-
     scheme = wall.rating_scheme or "stc"
     if findings is None:
         findings = [f for f in _live_findings(wall) if f.status in UNRESOLVED]
-    ctx = _Context(wall, memo)
+    ctx = WallContext(wall, memo)
     area = ctx.area
     wall_tl = ctx.tl
     o_areas, o_tls, flags, o_rows = _opening_curves(wall, _openings(wall), scheme)
@@ -253,8 +226,6 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     """The leak audit of one wall, uncached (see the module docstring for the three views)."""
     import acoustics
 
-    from .choices import FindingStatus
-
     scheme = wall.rating_scheme or "stc"
     target = wall.target_rating
     out: dict[str, Any] = {
@@ -321,6 +292,42 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
         }
     )
     return out
+
+
+# --------------------------------------------------------------------------- cached lookups
+def audits_for_walls(walls: Iterable) -> dict[int, dict]:
+    """Cached audit summaries of ``walls`` (each with its wall type loaded): {wall id: summary}.
+
+    Warm: two cache reads, no query. Cold walls: two queries (openings, findings) for all of them.
+    """
+
+    walls = list(walls)
+    if not walls:
+        return {}
+    keys = audit_keys(walls)
+    hit = cache.get_many(list(keys.values()))
+    out = {pk: hit[key] for pk, key in keys.items() if key in hit}
+    cold = [w for w in walls if w.pk not in out]
+    if cold:
+        for w in cold:  # a wall object reused after a change must not keep its old findings
+            for name in ("openings", "findings"):
+                getattr(w, "_prefetched_objects_cache", {}).pop(name, None)
+        prefetch_related_objects(
+            cold,
+            Prefetch("openings", queryset=Opening.objects.filter(removed=False).order_by("id")),
+            Prefetch("findings", queryset=Finding.objects.filter(removed=False).order_by("id")),
+        )
+        memo: dict = {}
+        fresh = {}
+        for w in cold:
+            fresh[keys[w.pk]] = out[w.pk] = compute_summary(w, memo=memo)
+        cache.set_many(fresh, AUDIT_TIMEOUT)
+    return out
+
+
+def audits_for_job(job) -> dict[int, dict]:
+    """{wall id: summary} for every live wall of ``job``: one query for the walls when warm."""
+    return audits_for_walls(Wall.objects.live().filter(job=job).select_related("wall_type"))
 
 
 def audit_summary(wall) -> dict:

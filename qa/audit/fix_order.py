@@ -1,6 +1,6 @@
 """Fix-first steps: an audit summary's fix order as per-finding rows for pages and reports.
 
-Reads a summary of :func:`qa.impact.audit_summary` (one of its views, by default the wall as
+Reads a summary of :func:`qa.audit.audit_summary` (one of its views, by default the wall as
 verified) and says, for each finding in the fix-first order, its step, what fixing it buys back, the
 rating after it and whether it is needed to reach the target.
 """

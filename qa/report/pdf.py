@@ -8,10 +8,11 @@ from __future__ import annotations
 
 import io
 
-from . import chart as chart_mod
-from .choices import FindingStatus
-from .impact import audits_for_walls
-from .models import Photo, Wall
+from ..audit import audits_for_walls
+from ..audit import chart as chart_mod
+from ..choices import FindingStatus
+from ..models import Photo, Wall
+from .content import _when, _who, content_sha256, last_sign_off
 
 _LATIN = str.maketrans(
     {
@@ -55,9 +56,6 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     """The hand-over report as PDF bytes (A4, core fonts, charts drawn with fpdf2 lines)."""
     from fpdf import FPDF
     from fpdf.enums import XPos, YPos
-
-    # At call time: qa.report imports this module to re-export render_pdf.
-    from .report import _when, _who, content_sha256, last_sign_off
 
     digest = content_sha256(content)
     signed = last_sign_off(job)
@@ -285,7 +283,7 @@ def _thumbs(job) -> dict[int, list[bytes]]:
 
 
 def _draw_chart(pdf, chart) -> None:
-    """Draw a :class:`qa.chart.Chart` with fpdf2 lines at the current position (about 80 mm tall)."""
+    """Draw a :class:`qa.audit.chart.Chart` with fpdf2 lines at the current position (about 80 mm tall)."""
     if chart is None:
         return
     if pdf.will_page_break(84):

@@ -67,7 +67,7 @@ def _segments(values, y_of) -> list[list[tuple[float, float]]]:
 
 
 def tl_chart(summary: dict, view: str = "verified") -> Chart | None:
-    """Chart geometry of a wall's audit (``summary`` from :func:`qa.impact.audit_summary`).
+    """Chart geometry of a wall's audit (``summary`` from :func:`qa.audit.audit_summary`).
 
     Returns None when the wall has no rating (no curve). Curves: designed TL, as-found TL of
     ``view``, TL after each step of the fix-first order, the rating's reference contour placed at

@@ -1,7 +1,7 @@
 """The walk: the shell page of the offline phone app and its endpoints (bundle, sync, uploads, conflicts).
 
 Thin views: the access helper resolves the job (404 for a non-member, 403 without the right),
-``qa.bundle``, ``qa.sync`` and ``qa.uploads`` do the work.
+:mod:`.bundle`, :mod:`.sync` and :mod:`.uploads` do the work.
 """
 
 from __future__ import annotations
@@ -19,11 +19,11 @@ from rest_framework.response import Response
 from rest_framework.views import APIView
 
 from ..access import membership, require
-from ..bundle import build_bundle
 from ..models import Conflict, Job
 from ..photos import PhotoError
-from ..sync import Reject, apply_batch, conflict_data, resolve_conflict
-from ..uploads import OffsetMismatch, append_chunk, finish_upload, open_upload, photo_data, upload_state
+from .bundle import build_bundle
+from .sync import Reject, apply_batch, conflict_data, resolve_conflict
+from .uploads import OffsetMismatch, append_chunk, finish_upload, open_upload, photo_data, upload_state
 
 #: Largest chunk accepted in one request (the walk sends 256 KiB).
 MAX_CHUNK = 2 * 1024 * 1024

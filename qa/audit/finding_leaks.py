@@ -1,8 +1,8 @@
 """One finding as an engine leak: the record's finding kinds mapped onto :mod:`acoustics` models.
 
 :func:`finding_leak` turns a finding (SI sizes, fill, face, count) into an :class:`acoustics.Leak` on
-its wall type; :class:`_Context` holds what every finding of one wall shares and memoises alike
-computations. :func:`qa.impact.wall_inputs` uses these to build a wall's leaks; the mapping of kinds
+its wall type; :class:`WallContext` holds what every finding of one wall shares and memoises alike
+computations. :func:`qa.audit.summary.wall_inputs` uses these to build a wall's leaks; the mapping of kinds
 is listed in its Notes.
 
 References
@@ -51,7 +51,7 @@ def _assembly(wall_type):
         return None
 
 
-class _Context:
+class WallContext:
     """What every finding of one wall needs: sizes, the layered construction, the lab curve."""
 
     def __init__(self, wall, memo: dict | None = None):
@@ -139,7 +139,7 @@ def _relabel(leak, kind: str, label: str, count: int = 1):
     return out.times(count) if count > 1 else out
 
 
-def finding_leak(f, ctx: _Context):
+def finding_leak(f, ctx: WallContext):
     """One finding as an :class:`acoustics.Leak` (added transmission area per band, m^2).
 
     Raises :class:`Unmodelled` when the wall type cannot carry the model (e.g. a missing batt on a

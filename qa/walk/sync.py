@@ -34,11 +34,11 @@ from django.utils import timezone
 from django.utils.dateparse import parse_datetime
 from rest_framework import serializers
 
-from .access import require
-from .api.serializers import FindingSerializer
-from .choices import SealStatus
-from .models import Conflict, Event, Finding, Job, Member, SealPoint, SyncOperation
-from .models.findings import TransitionError
+from ..access import require
+from ..api.serializers import FindingSerializer
+from ..choices import SealStatus
+from ..models import Conflict, Event, Finding, Job, Member, SealPoint, SyncOperation
+from ..models.findings import TransitionError
 
 MAX_BATCH = 500
 #: Fields a device may change on a finding with ``finding.update`` (API names, job units): what the

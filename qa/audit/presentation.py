@@ -1,21 +1,21 @@
 """Leak-audit presentation: rating and size texts, the timeline, and the job and wall overviews.
 
-The wall and job pages (:mod:`qa.views.pages`) use the helpers here to present an audit summary
-(:func:`qa.impact.audit_summary`). The crew list, mark fixed and the inspector's check are in
-:mod:`qa.views.crew`; the hand-over report and sign-off in :mod:`qa.views.report`.
+The wall and job pages (:mod:`qa.views.pages`), the crew pages and the hand-over report use the
+helpers here to present an audit summary (:func:`qa.audit.audit_summary`).
 """
 
 from __future__ import annotations
 
 from django.db.models import Q
 
+from .. import units
 from ..access import can
-from ..choices import FindingStatus, Trade
-from ..impact import fix_steps  # noqa: F401  (re-exported for templates' views)
+from ..choices import OPEN_STATUSES, STATUS_GROUPS, FindingStatus, GapKind, Trade
 from ..models import Event
+from . import chart
+from .fix_order import fix_steps
 
-OPEN = (FindingStatus.OPEN, FindingStatus.REOPENED)
-SQ_IN = 0.0254**2  # m^2, exact
+OPEN = OPEN_STATUSES
 
 
 # --------------------------------------------------------------------------- presentation helpers
@@ -29,20 +29,19 @@ def rating_text(summary: dict, value, terms: dict | None = None) -> str:
     return text
 
 
-def open_area_text(m2: float | None, units: str) -> str:
+def open_area_text(m2: float | None, u: str) -> str:
     """A small equivalent open area in the job's units: cm² (metric) or in² (imperial)."""
     if m2 is None:
         return "—"
-    value, unit = (m2 / SQ_IN, "in²") if units == "imperial" else (m2 * 1e4, "cm²")
+    value = units.from_si(m2, "small_area", u)
     if value == 0:
-        return f"0 {unit}"
+        return f"0 {units.symbol('small_area', u)}"
     digits = 2 if value < 1 else 1 if value < 10 else 0
-    return f"{value:.{digits}f} {unit}"
+    return f"{value:.{digits}f} {units.symbol('small_area', u)}"
 
 
 def finding_size(f, u: str) -> str:
     """A finding's recorded size in the job's units; small areas in cm² or in², never '0 m²'."""
-    from .. import units
 
     def gap(v):
         return units.fmt(v, "gap", u)
@@ -83,7 +82,6 @@ def event_text(event: Event, labels: dict) -> str:
 
 
 # --------------------------------------------------------------------------- job and wall overviews
-STATUS_GROUPS = {"open": OPEN, "fixed": (FindingStatus.FIXED,), "verified": (FindingStatus.VERIFIED,)}
 FIX_LIST_SHOWN = 40
 
 
@@ -96,8 +94,6 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
 
     ``findings`` are tuples (id, wall id, trade, status, kind, seal point label) of live findings.
     """
-    from ..choices import GapKind
-
     kinds, trades = dict(GapKind.choices), dict(Trade.choices)
     f = {k: params.get(k, "") for k in ("level", "type", "trade", "status", "below", "all")}
     statuses = STATUS_GROUPS.get(f["status"])
@@ -207,8 +203,6 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
 
 def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
     """Context of the wall page: chart, audit table, findings with actions, timeline."""
-    from .. import chart
-
     u = job.units
     steps = fix_steps(summary)
     by_id = {f.pk: f for f in findings}

@@ -18,10 +18,10 @@ from django.core.files.base import ContentFile
 from django.db import transaction
 from django.utils.dateparse import parse_datetime
 
-from .access import require
-from .choices import PhotoPurpose, Role
-from .models import Event, Finding, Member, Photo, PhotoUpload, Wall
-from .photos import clean_photo
+from ..access import require
+from ..choices import PhotoPurpose, Role
+from ..models import Event, Finding, Member, Photo, PhotoUpload, Wall
+from ..photos import clean_photo
 from .sync import Reject
 
 SHA256 = re.compile(r"^[0-9a-f]{64}$")

@@ -34,7 +34,7 @@ def test_bundle_holds_the_job_in_its_units(world, api):
 
 
 def test_prefill_converts_template_geometry_to_job_units(world, api):
-    from qa.bundle import prefill
+    from qa.walk.bundle import prefill
 
     point = world.wall.seal_points.filter(gap__has_key="length_fraction").first()
     if point is None:
@@ -64,14 +64,9 @@ def test_crew_bundle_has_only_their_trade(world, api):
     assert body["conflicts"] == []
 
 
-def test_audits_included_when_the_engine_adapter_provides_them(world, api):
-    from qa import impact
-
+def test_the_bundle_carries_each_walls_last_audit(world, api):
     make_finding(world, "electrical")
     body = api(world.inspector).get(url(world.job)).data
-    if not hasattr(impact, "audits_for_walls") and not hasattr(impact, "audits_for_job"):
-        assert "audits" not in body
-        return
     audit = body["audits"][str(world.wall.id)]
     assert audit["designed"] is not None and audit["target"] == 50
     finding = Finding.objects.get()

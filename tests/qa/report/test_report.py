@@ -14,6 +14,7 @@ import pytest
 
 from qa import report
 from qa.models import Finding
+from qa.report import content, pdf
 from tests.qa.pdftext import pdf_strings
 
 
@@ -59,7 +60,7 @@ def findings(world):
     ],
 )
 def test_neutralise(text, expected):
-    assert report.neutralise(text) == expected
+    assert content.neutralise(text) == expected
 
 
 def test_csv_punch_list(world, findings):
@@ -109,5 +110,5 @@ def test_pdf_states_walls_findings_cautions_rule_set(world, findings):
 
 
 def test_pdf_text_is_latin1_safe():
-    assert report.pdf_text("6 mm × 900 mm — ⌀ 22 mm ≥ 1 m²") == "6 mm × 900 mm - dia. 22 mm >= 1 m²"
-    assert report.pdf_text("漢") == "?"
+    assert pdf.pdf_text("6 mm × 900 mm — ⌀ 22 mm ≥ 1 m²") == "6 mm × 900 mm - dia. 22 mm >= 1 m²"
+    assert pdf.pdf_text("漢") == "?"

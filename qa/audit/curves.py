@@ -3,7 +3,7 @@
 A curve is stored as a list of 21 values (bands 50-5000 Hz, null where not measured). These helpers
 check such a list, rate it, and give a wall type the curve it should store (a lab curve as entered, or
 one predicted from its layers by :mod:`acoustics.walls`). Part of the adapter between the record and
-the engine (:mod:`qa.impact`).
+the engine (:mod:`qa.audit.summary`).
 """
 
 from __future__ import annotations

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 from django.urls import path
 
-from . import walk
+from .. import converters  # noqa: F401  (registers <id:...>)
+from . import views as walk
 
 urlpatterns = [
     path("walk/", walk.walk_shell, name="walk"),
