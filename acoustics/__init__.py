@@ -8,8 +8,6 @@ measured); every function is vectorised over leading axes.
 
 from __future__ import annotations
 
-import importlib.util as _ilu
-
 from .bands import BAND_INDEX, BANDS, N_BANDS, band_edges, band_slice, exact_centres, sub_band_frequencies
 from .composite import composite, tau_from_tl, tl_from_tau, tl_with_added_area
 from .errors import AcousticsError, GeometryError, RatingError
@@ -39,8 +37,18 @@ __all__ = [
     "tl_with_added_area",
 ]
 
+from .assembly import CONNECTION_TYPES, Assembly, Cavity, Connection, Leaf, WallSpecError
 from .audit import Audit, audit
 from .bands import averaging_frequencies
+from .defects import (
+    back_to_back_boxes,
+    channel_short_circuit,
+    insulation_defect,
+    missing_layer,
+    one_face_gap,
+    one_face_gap_from_lab,
+    rigid_bridge,
+)
 from .field import (
     apparent_r,
     apparent_tl,
@@ -71,7 +79,19 @@ from .leaks import (
     skin_gap,
     slit,
 )
+from .materials import MATERIALS, Material, bending_stiffness, critical_frequency, get_material
 from .ratings import rating_weights, round_half_up
+from .wall_physics import (
+    cavity_absorption,
+    cavity_loss_factor,
+    cavity_path_tl,
+    finite_size_tau,
+    mass_law,
+    resonance_factor,
+    resonance_frequency,
+    single_leaf_tl,
+)
+from .walls import Prediction, predict, predict_tl
 
 __all__ += [
     "dnt_from_r_prime",
@@ -107,12 +127,34 @@ __all__ += [
     "averaging_frequencies",
 ]
 
-# Wall prediction modules are developed alongside; re-export them once they exist.
-for _name in ("materials", "walls", "defects"):
-    if _ilu.find_spec(f"{__name__}.{_name}") is not None:
-        _mod = __import__(f"{__name__}.{_name}", fromlist=["__all__"])
-        for _public in getattr(_mod, "__all__", ()):
-            globals()[_public] = getattr(_mod, _public)
-            __all__.append(_public)
-        del _mod
-del _ilu, _name
+__all__ += [
+    "CONNECTION_TYPES",
+    "Assembly",
+    "Cavity",
+    "Connection",
+    "Leaf",
+    "WallSpecError",
+    "back_to_back_boxes",
+    "channel_short_circuit",
+    "insulation_defect",
+    "missing_layer",
+    "one_face_gap",
+    "one_face_gap_from_lab",
+    "rigid_bridge",
+    "MATERIALS",
+    "Material",
+    "bending_stiffness",
+    "critical_frequency",
+    "get_material",
+    "cavity_absorption",
+    "cavity_loss_factor",
+    "cavity_path_tl",
+    "finite_size_tau",
+    "mass_law",
+    "resonance_factor",
+    "resonance_frequency",
+    "single_leaf_tl",
+    "Prediction",
+    "predict",
+    "predict_tl",
+]

@@ -1,6 +1,6 @@
 """Wall specs: the leaves, cavity and connection of a wall, parsed and validated from a JSON-like spec.
 
-The physics lives in :mod:`acoustics.walls`, which re-exports every public name of this module.
+The wall's predicted TL is computed by :mod:`acoustics.walls` from these specs.
 
 Spec format (JSON-like; :meth:`Assembly.from_dict`)::
 
@@ -38,8 +38,12 @@ import numpy as np
 from .constants import C0
 from .errors import AcousticsError
 from .materials import Material, get_material
+from .wall_physics import single_leaf_tl
 
 __all__ = [
+    "DEFAULT_AREA",
+    "STEEL_STUD_STIFFNESS",
+    "CHANNEL_STIFFNESS",
     "WallSpecError",
     "Leaf",
     "Cavity",
@@ -116,9 +120,7 @@ class Leaf:
         return np.full(f.shape, base)
 
     def tl(self, f: Any, area: float | None = None) -> np.ndarray:
-        """Single-leaf TL at f, dB (Sharp/Bies single-leaf method of :mod:`acoustics.walls`)."""
-        from .walls import single_leaf_tl  # the physics module imports this one; import at call time
-
+        """Single-leaf TL at f, dB (Sharp/Bies method, :func:`acoustics.wall_physics.single_leaf_tl`)."""
         return single_leaf_tl(f, self.m, self.fc, self.eta(f), area=area)
 
     def to_dict(self) -> dict[str, Any]:

@@ -42,11 +42,13 @@ from typing import Any
 
 import numpy as np
 
+from .assembly import Assembly, Cavity, Connection, Leaf
 from .bands import sub_band_frequencies
 from .constants import C0, RHO0
 from .errors import GeometryError
 from .leaks import Leak
-from .walls import POINTS, Assembly, Cavity, Connection, Leaf, _limp_tau, _paths, predict
+from .wall_physics import _limp_tau
+from .walls import POINTS, _paths, predict
 
 __all__ = [
     "one_face_gap",

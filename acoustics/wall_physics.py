@@ -22,7 +22,6 @@ from typing import Any
 import numpy as np
 
 from . import apertures as ap
-from .assembly import Assembly, Cavity, Leaf, WallSpecError
 from .constants import C0, RHO0
 
 __all__ = [
@@ -61,7 +60,7 @@ def mass_law(f: Any, m: float, *, incidence: str = "field", c0: float = C0, rho0
     if incidence == "normal":
         return tl0
     if incidence != "field":
-        raise WallSpecError(f"incidence must be 'field' or 'normal', got {incidence!r}")
+        raise ValueError(f"incidence must be 'field' or 'normal', got {incidence!r}")
     return tl0 - FIELD_CORRECTION
 
 
@@ -152,8 +151,24 @@ def resonance_frequency(
     return float(np.sqrt(s * (m1 + m2) / (m1 * m2)) / (2 * np.pi))
 
 
-def cavity_absorption(f: Any, cavity: Cavity, *, c0: float = C0, rho0: float = RHO0) -> np.ndarray:
+def cavity_absorption(
+    f: Any,
+    fill_thickness: float = 0.0,
+    flow_resistivity: float = 10000.0,
+    *,
+    c0: float = C0,
+    rho0: float = RHO0,
+) -> np.ndarray:
     """Absorption coefficient seen by the cavity field: max(bare cavity, rigidly backed fill layer).
+
+    Parameters
+    ----------
+    f : array_like
+        Frequency, Hz.
+    fill_thickness : float
+        Porous fill thickness t, m (0 = empty cavity).
+    flow_resistivity : float
+        Airflow resistivity of the fill, Pa s/m^2.
 
     Notes
     -----
@@ -162,10 +177,10 @@ def cavity_absorption(f: Any, cavity: Cavity, *, c0: float = C0, rho0: float = R
     """
     f = np.asarray(f, float)
     bare = np.interp(np.log10(f), np.log10(_BARE_ALPHA[0]), _BARE_ALPHA[1])
-    t = cavity.absorber_thickness
+    t = fill_thickness
     if t <= 0:
         return bare
-    kc, zeta, _ = ap.delany_bazley(f, cavity.flow_resistivity, rho0=rho0, c0=c0)
+    kc, zeta, _ = ap.delany_bazley(f, flow_resistivity, rho0=rho0, c0=c0)
     z = -1j * zeta / np.tan(kc * t)
     alpha = 1 - np.abs((z - 1) / (z + 1)) ** 2
     return np.maximum(bare, alpha)
@@ -245,9 +260,11 @@ def resonance_factor(
     f: Any,
     m1: float,
     m2: float,
-    cavity: Cavity,
+    depth: float,
     eta_air: Any,
     *,
+    fill_thickness: float = 0.0,
+    flow_resistivity: float = 10000.0,
     partitioned: bool = False,
     c0: float = C0,
     rho0: float = RHO0,
@@ -260,10 +277,12 @@ def resonance_factor(
         Frequency, Hz.
     m1, m2 : float
         Leaf surface densities, kg/m^2.
-    cavity : Cavity
-        Depth and porous fill (fill laid against leaf 1).
+    depth : float
+        Cavity depth d, m.
     eta_air : array_like
         Loss factor of the cavity (broadcast with f), see :func:`cavity_loss_factor`.
+    fill_thickness, flow_resistivity : float
+        Porous fill laid against leaf 1, m, and its airflow resistivity, Pa s/m^2.
     partitioned : bool
         Studs or furring cross the cavity: the air cannot move laterally across the bays, only along them.
 
@@ -303,11 +322,11 @@ def resonance_factor(
     kx = k * sin * (_PHI_SIN[:, None] if partitioned else 1.0)
     extra = (None, None) if partitioned else (None,)
     eta = np.asarray(eta_air, float)[(..., *extra)] if np.ndim(eta_air) else eta_air
-    d, tf = cavity.depth, cavity.absorber_thickness
+    d, tf = depth, fill_thickness
     kmod = rho0 * c0**2 * (1 + 1j * eta) * d / (d + 0.4 * tf)  # bulk modulus, as in f0, with the cavity loss
     layers = []
     if tf > 0:  # fill: Delany-Bazley dynamic density (flow resistance damps the lateral air motion)
-        kf, zf, _ = ap.delany_bazley(f, cavity.flow_resistivity, rho0=rho0, c0=c0)
+        kf, zf, _ = ap.delany_bazley(f, flow_resistivity, rho0=rho0, c0=c0)
         rho_f = (zf * kf * rho0 * c0 / (2 * np.pi * f))[(..., *extra)]
         layers.append(_layer_matrix(w * np.sqrt(rho_f / kmod), np.sqrt(rho_f * kmod), kx, tf))
     if d - tf > 1e-6:
@@ -322,49 +341,3 @@ def resonance_factor(
         tau_m = tau_m[..., 0, :]
     wt = sin * cos
     return (tau * wt).sum(-1) / (tau_m * wt).sum(-1)
-
-
-def _line_mobility(f: np.ndarray, leaf: Leaf) -> np.ndarray:
-    w = 2 * np.pi * f
-    cb = (w**2 * leaf.stiffness / leaf.m) ** 0.25
-    return (1 - 1j) / (4 * leaf.m * cb)
-
-
-def _compliance(y1: np.ndarray, y2: np.ndarray, f: np.ndarray, k: float | None) -> np.ndarray:
-    if k is None:
-        return np.ones_like(f)
-    ys = 1j * 2 * np.pi * f / (k * (1 + 0.1j))
-    return np.minimum(1.0, np.abs(y1 + y2) ** 2 / np.abs(y1 + y2 + ys) ** 2)
-
-
-def _bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray) -> np.ndarray:
-    """Stud/point path tau (Vigran Eq. 8.20-8.26 with compliance), zero for decoupled leaves."""
-    a, b = asm.leaves
-    c = asm.connection
-    m1, m2, fc1, fc2 = a.m, b.m, a.fc, b.fc
-    if c.type in ("none", "double_studs") or (c.type == "points" and c.spacing is None):
-        return np.zeros_like(f)
-    if c.channel_leaf is not None or c.type == "points":
-        grid = (c.channel_spacing * c.spacing) if c.channel_leaf is not None else c.spacing**2
-        fg = (m1 * fc2 + m2 * fc1) / (m1 + m2)
-        dr = max(0.0, 20 * np.log10(np.sqrt(grid) * fg) - 45)
-        y1 = np.full(f.shape, 1 / (8 * np.sqrt(a.stiffness * m1)), complex)
-        y2 = np.full(f.shape, 1 / (8 * np.sqrt(b.stiffness * m2)), complex)
-        if c.channel_leaf is not None:
-            k = c.channel_stiffness
-            if c.stiffness is not None:  # channel on a steel stud: springs in series (stud per point)
-                k = 1 / (1 / k + 1 / (c.stiffness * c.channel_spacing))
-        else:
-            k = c.stiffness
-        comp = _compliance(y1, y2, f, k)
-    else:
-        spacing = asm.height / 2 if c.type == "staggered_studs" else c.spacing
-        fcl = ((m1 * np.sqrt(fc2) + m2 * np.sqrt(fc1)) / (m1 + m2)) ** 2
-        dr = max(0.0, 10 * np.log10(spacing * fcl) - 23)
-        comp = _compliance(_line_mobility(f, a), _line_mobility(f, b), f, c.stiffness)
-    # Below fc/2 Sharp's bridge term; from fc up the rigidly tied leaves radiate as one panel of mass
-    # m1 + m2 (resonant radiation, sigma ~ 1), so the bridge gain fades: straight line in lg f between.
-    fcb = min(fc1, fc2)
-    x = np.clip(np.log2(f / (fcb / 2)), 0.0, 1.0) if c.type != "staggered_studs" else 0.0
-    tl_b = -10 * np.log10(tau_m) + dr * (1 - x) - dip
-    return 10 ** (-tl_b / 10) * comp

@@ -8,10 +8,9 @@ material's loss factor, or ``loss_factor`` on a leaf) and **sealing** (the
 perimeter). Use :func:`predict` for the full result (per-leaf TL, cavity and
 stud paths, f0, f_l) and :func:`predict_tl` for the web app's (21,) curve.
 
-Spec format: see :mod:`acoustics.assembly` (``Assembly.from_dict``); the names defined there
-(``Assembly``, ``Leaf``, ``Cavity``, ``Connection``, ``WallSpecError``, ...) are re-exported here.
-The formulas of each path (single leaf, cavity path and its resonance, stud path) are in
-:mod:`acoustics.wall_physics`; their names are re-exported here too. This module combines them.
+Spec format: see :mod:`acoustics.assembly` (``Assembly.from_dict``). The formulas of each path are
+in :mod:`acoustics.wall_physics` (single leaf, cavity path and its resonance) and
+:mod:`acoustics.structural` (studs, channels, ties); this module combines them.
 
 Notes
 -----
@@ -66,59 +65,20 @@ from typing import Any
 import numpy as np
 
 from . import apertures as ap
-from .assembly import (  # re-exported: specs were defined here before the split
-    CHANNEL_STIFFNESS,  # noqa: F401
-    CONNECTION_TYPES,
-    DEFAULT_AREA,  # noqa: F401
-    STEEL_STUD_STIFFNESS,  # noqa: F401
-    Assembly,
-    Cavity,
-    Connection,
-    Leaf,
-    WallSpecError,
-)
+from .assembly import Assembly, Connection
 from .bands import sub_band_frequencies
 from .constants import C0, RHO0
-from .wall_physics import (  # re-exported: the path physics was defined here before the split
-    _BARE_ALPHA,  # noqa: F401
-    _PHI_SIN,  # noqa: F401
-    _THETA,  # noqa: F401
-    FIELD_CORRECTION,  # noqa: F401
-    _bridge_tau,
-    _compliance,  # noqa: F401
-    _layer_matrix,  # noqa: F401
+from .structural import bridge_tau
+from .wall_physics import (
     _limp_tau,
-    _line_mobility,  # noqa: F401
-    _matmul,  # noqa: F401
     cavity_absorption,
     cavity_loss_factor,
     cavity_path_tl,
-    finite_size_tau,
-    mass_law,
     resonance_factor,
     resonance_frequency,
-    single_leaf_tl,
 )
 
-__all__ = [
-    "WallSpecError",
-    "Leaf",
-    "Cavity",
-    "Connection",
-    "Assembly",
-    "Prediction",
-    "mass_law",
-    "finite_size_tau",
-    "single_leaf_tl",
-    "resonance_frequency",
-    "cavity_absorption",
-    "cavity_path_tl",
-    "predict",
-    "predict_tl",
-    "CONNECTION_TYPES",
-    "cavity_loss_factor",
-    "resonance_factor",
-]
+__all__ = ["POINTS", "Prediction", "predict", "predict_tl"]
 
 #: Sub-band points per third octave for tau averaging.
 POINTS = 8
@@ -162,7 +122,7 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
     )
     fl = C0 / (2 * np.pi * d)
     tau_m = _limp_tau(f, a.m + b.m, S, C0, RHO0)
-    alpha = cavity_absorption(f, cav)
+    alpha = cavity_absorption(f, cav.absorber_thickness, cav.flow_resistivity)
     tcav = 10 ** (
         -cavity_path_tl(
             f,
@@ -183,8 +143,10 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
         f[low],
         a.m,
         b.m,
-        Cavity(d, cav.absorber_thickness, cav.flow_resistivity),
+        d,
         cavity_loss_factor(f[low], d, alpha[low]),
+        fill_thickness=cav.absorber_thickness,
+        flow_resistivity=cav.flow_resistivity,
         partitioned=asm.connection.type in PARTITIONING,
     )
     tcav = np.where(f < fl, np.maximum(tcav, tau_m * res), tcav)
@@ -196,7 +158,7 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
         ],
         axis=0,
     )
-    out.update(cavity=tcav, bridge=_bridge_tau(asm, f, tau_m, dip), f0=f0, f_l=fl)
+    out.update(cavity=tcav, bridge=bridge_tau(asm, f, tau_m, dip), f0=f0, f_l=fl)
     return out
 
 

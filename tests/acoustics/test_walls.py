@@ -5,19 +5,17 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
+from acoustics.assembly import Assembly, WallSpecError
 from acoustics.bands import N_BANDS
 from acoustics.ratings import stc
-from acoustics.walls import (
-    Assembly,
-    WallSpecError,
+from acoustics.wall_physics import (
     cavity_path_tl,
     finite_size_tau,
     mass_law,
-    predict,
-    predict_tl,
     resonance_frequency,
     single_leaf_tl,
 )
+from acoustics.walls import predict, predict_tl
 
 SINGLE_STUD = {
     "leaves": [{"layers": ["gypsum_12.7"]}, {"layers": ["gypsum_12.7"]}],

@@ -16,7 +16,7 @@ if sys.version_info < (3, 13):
 pt = pytest.importorskip("phonometry.building.panel_transmission", reason="phonometry is not installed")
 
 from acoustics.bands import BANDS  # noqa: E402
-from acoustics.walls import cavity_path_tl, mass_law, resonance_frequency, single_leaf_tl  # noqa: E402
+from acoustics.wall_physics import cavity_path_tl, mass_law, resonance_frequency, single_leaf_tl  # noqa: E402
 
 F = np.array(BANDS, dtype=float)  # the nominal band centres, Hz, the same inputs on both sides
 AIR = {"speed_of_sound": 343.0, "air_density": 1.21}
