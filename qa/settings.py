@@ -96,17 +96,14 @@ DATABASES = {
     if _db_url
     else {"ENGINE": "django.db.backends.sqlite3", "NAME": DATA_DIR / "db.sqlite3"}
 }
+# Many phones sync at once. SQLite's default (deferred) transaction reads first and takes the write lock
+# only at its first write; if another connection committed in between, that upgrade fails at once with
+# "database is locked" and the busy timeout is never consulted (waiting could deadlock). BEGIN IMMEDIATE
+# takes the write lock at the start, where the timeout does apply: writers queue for up to ``timeout``
+# seconds instead of failing. WAL lets readers go on while one connection writes.
+SQLITE_OPTIONS = {"timeout": 20, "transaction_mode": "IMMEDIATE", "init_command": "PRAGMA journal_mode=WAL;"}
 if DATABASES["default"]["ENGINE"].endswith("sqlite3"):
-    # Many phones sync at once. SQLite's default (deferred) transaction reads first and takes the write
-    # lock only at its first write; if another connection committed in between, that upgrade fails at
-    # once with "database is locked" and the busy timeout is never consulted (waiting could deadlock).
-    # BEGIN IMMEDIATE takes the write lock at the start, where the timeout does apply: writers queue
-    # for up to ``timeout`` seconds instead of failing. WAL lets readers go on while one writes.
-    DATABASES["default"]["OPTIONS"] = {
-        "timeout": 20,
-        "transaction_mode": "IMMEDIATE",
-        "init_command": "PRAGMA journal_mode=WAL;",
-    }
+    DATABASES["default"]["OPTIONS"] = dict(SQLITE_OPTIONS)
 
 INSTALLED_APPS = [
     "django.contrib.admin",

@@ -1,4 +1,9 @@
-"""``python manage.py demo``: set up the database, load the invented demo job, print logins, serve."""
+"""``python manage.py demo``: set up the database, load the invented demo job, print logins, serve.
+
+This is the one command that asks for debug by itself: ``qa/settings.py`` turns debug on when it is
+run as ``manage.py demo`` (the local demo uses the development key and Django's own server). An
+explicit ``SEALWALK_DEBUG=0`` wins; then the job is loaded but not served.
+"""
 
 from __future__ import annotations
 
@@ -37,6 +42,9 @@ class Command(BaseCommand):
         if no_serve:
             return
         if not settings.DEBUG:
-            self.stderr.write("The demo server is for local use; run gunicorn in production (see README).")
+            self.stderr.write(
+                "Not serving: SEALWALK_DEBUG=0 turned debug off, and the demo server is for local use only. "
+                "Run gunicorn in production (see README)."
+            )
             return
         call_command("runserver", addr, use_reloader=False)
