@@ -13,6 +13,7 @@ import json
 import os
 import subprocess
 import sys
+import tempfile
 from pathlib import Path
 
 import pytest
@@ -30,7 +31,11 @@ OWN = {
 OWN |= {k for k in os.environ if k.startswith("UPLOAD_")}
 
 
-def run(env: dict, code: str, *, argv: list[str] | None = None, db: str = "sqlite:////tmp/unused.db"):
+# Never opened by these checks (settings only); named so that a stray connection would not touch real data.
+UNUSED_DB = f"sqlite:///{Path(tempfile.gettempdir()) / 'sealwalk-settings-check-unused.sqlite3'}"
+
+
+def run(env: dict, code: str, *, argv: list[str] | None = None, db: str = UNUSED_DB):
     """Run ``code`` with qa.settings and exactly the Sealwalk variables in ``env`` (none inherited)."""
     base = {k: v for k, v in os.environ.items() if k not in OWN}
     base.update({"DJANGO_SETTINGS_MODULE": "qa.settings", "DATABASE_URL": db, **env})
