@@ -158,3 +158,27 @@ __all__ += [
     "predict",
     "predict_tl",
 ]
+
+# Field tests and the ISO 12354-1 field prediction.
+from .building_kinds import BUILDING_KINDS, default_junctions, predict_wall  # noqa: E402
+from .field import FieldInputError, FieldTest, background_correction, field_test, field_test_from_report  # noqa: E402
+from .field_inputs import Element, Junction, Room, Separating  # noqa: E402
+from .field_prediction import FieldPrediction, predict_field, predict_simplified  # noqa: E402
+
+__all__ += [
+    "BUILDING_KINDS",
+    "default_junctions",
+    "predict_wall",
+    "FieldInputError",
+    "FieldTest",
+    "background_correction",
+    "field_test",
+    "field_test_from_report",
+    "Element",
+    "Junction",
+    "Room",
+    "Separating",
+    "FieldPrediction",
+    "predict_field",
+    "predict_simplified",
+]
