@@ -108,6 +108,7 @@ def test_other_commands_do_not_get_debug(command):
     assert refused(run({}, PRINT_DEBUG, argv=["manage.py", command]), "SECRET_KEY")
 
 
+@pytest.mark.slow
 def test_demo_command_sets_up_and_loads_with_no_environment(tmp_path):
     """What the README's first command does on a fresh machine, minus serving."""
     base = {k: v for k, v in os.environ.items() if k not in OWN}
