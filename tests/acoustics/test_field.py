@@ -101,3 +101,123 @@ def test_c15_apparent_index_and_dntw():
     assert r_prime == pytest.approx(52.17, abs=0.05)
     assert round(float(r_prime)) == 52
     assert ac.dnt_from_r_prime(r_prime, 50, 11.5) == pytest.approx(53.6, abs=0.05)
+
+
+# ----------------------------------------------- field tests from measured bands (ISO 16283-1, ASTM E336)
+def test_background_correction_rules():
+    """ISO 16283-1 Clause 9.2 (from memory): > 10 dB no correction; 6-10 dB log subtraction (hand: 50 - 42
+    -> 50 + 10 lg(1 - 10^-0.8) = 49.251); < 6 dB the 1.3 dB correction, flagged as a limit."""
+    l2 = np.full(21, 50.0)
+    b2 = np.array([39.9, 40.0, 42.0, 44.0, 44.1, 45.0, 47.0] + [30.0] * 14)
+    out, limit = ac.background_correction(l2, b2)
+    assert out[0] == 50.0 and not limit[0]  # 10.1 dB: no correction
+    assert out[1] == pytest.approx(50 + 10 * np.log10(1 - 0.1), abs=1e-9)  # exactly 10 dB: corrected
+    assert out[2] == pytest.approx(49.251, abs=0.001)
+    assert out[3] == pytest.approx(50 + 10 * np.log10(1 - 10**-0.6), abs=1e-9) and not limit[3]  # 6 dB
+    np.testing.assert_allclose(out[4:7], 48.7)  # 5.9, 5 and 3 dB: limited to 1.3 dB
+    assert limit[4:7].all() and not limit[:4].any() and not limit[7:].any()
+
+
+def _levels():
+    """L1 flat 95 dB, L2 = L1 - (ISO 717-1 heavy-wall curve - 2 dB), T2 0.6 s, V 48 m^3, S 11 m^2."""
+    l1 = np.full(21, 95.0)
+    return l1, l1 - (HEAVY_WALL - 2.0), 0.6, 48.0, 11.0
+
+
+def test_field_test_hand_calculation():
+    """ISO 16283-1: D = L1 - L2, DnT = D + 10 lg(T/0.5), R' = D + 10 lg(S T / (0.16 V)); ASTM E336:
+    NNR = NR + 10 lg(T/0.5), ATL = NR + 10 lg(S T / (0.161 V)) (hand-worked at 500 Hz: D = 46.5,
+    DnT = 47.29, R' = 46.5 + 10 lg(6.6 / 7.68) = 45.84, ATL = 45.81)."""
+    l1, l2, t, v, s = _levels()
+    res = ac.field_test(l1, l2, t, v, s)
+    i = ac.BAND_INDEX[500]
+    assert res.d[i] == pytest.approx(46.5)
+    assert res.dnt[i] == pytest.approx(47.29, abs=0.005)
+    assert res.r_prime[i] == pytest.approx(45.84, abs=0.005)
+    assert res.atl[i] == pytest.approx(45.81, abs=0.005)
+    assert res.nnr[i] == pytest.approx(res.dnt[i])
+    assert res.r_prime_w == ac.rw(res.r_prime) and res.dnt_w == ac.rw(res.dnt)
+    assert (res.astc, res.nnic, res.nic) == (ac.stc(res.atl), ac.stc(res.nnr), ac.stc(res.d))
+    assert res.flags == ()
+
+
+def test_field_test_against_phonometry():
+    """D, DnT, R', R'w, DnT,w equal phonometry's airborne_insulation and weighted_rating (an oracle)."""
+    import sys
+
+    if sys.version_info < (3, 13):
+        pytest.skip("phonometry requires Python >= 3.13")
+    pin = pytest.importorskip("phonometry.building.insulation", reason="phonometry is not installed")
+    rng = np.random.default_rng(7)
+    for _ in range(20):
+        l1 = rng.uniform(85, 100, 21)
+        l2 = l1 - rng.uniform(25, 65, 21)
+        t = rng.uniform(0.3, 1.5, 21)
+        v, s = rng.uniform(20, 120), rng.uniform(6, 20)
+        ours = ac.field_test(l1, l2, t, v, s)
+        theirs = pin.airborne_insulation(l1, l2, t, area=s, volume=v)
+        np.testing.assert_allclose(ours.d, theirs.d, atol=1e-9)
+        np.testing.assert_allclose(ours.dnt, theirs.dnt, atol=1e-9)
+        np.testing.assert_allclose(ours.r_prime, theirs.r_prime, atol=1e-9)
+        assert ours.r_prime_w.rw == pin.weighted_rating(theirs.r_prime[3:19]).rating
+        assert ours.dnt_w.rw == pin.weighted_rating(theirs.dnt[3:19]).rating
+
+
+def test_field_test_background_limit_is_flagged_or_refused():
+    """A band with background within 6 dB is a limit value: flagged, or refused with strict_background."""
+    l1, l2, t, v, s = _levels()
+    b2 = l2 - 15.0
+    b2[8] = l2[8] - 4.0
+    res = ac.field_test(l1, l2, t, v, s, b2=b2)
+    assert res.limit_bands == [315] and "background_limit" in res.flags
+    assert res.d[8] == pytest.approx(l1[8] - l2[8] + 1.3)
+    with pytest.raises(ac.FieldInputError, match=r"b2\[315 Hz\]: background must be at least 6 dB"):
+        ac.field_test(l1, l2, t, v, s, b2=b2, strict_background=True)
+
+
+def test_field_test_partial_ranges_and_report_input():
+    """ISO-only data (no 4000 Hz) rates R'w and DnT,w but not ASTC; report band results are rated directly."""
+    l1, l2, t, v, s = _levels()
+    l1 = l1.copy()
+    l2 = l2.copy()
+    l1[19:] = np.nan
+    l2[19:] = np.nan
+    res = ac.field_test(l1, l2, t, v, s)
+    assert res.astc is None and res.r_prime_w is not None and "astm_incomplete" in res.flags
+    rep = ac.field_test_from_report(r_prime=HEAVY_WALL, dnt=HEAVY_WALL + 1)
+    assert rep.r_prime_w.rw == 53 and rep.dnt_w.rw == 54 and rep.astc is None
+    rep2 = ac.field_test_from_report(atl=HEAVY_WALL, nnr=HEAVY_WALL)
+    assert rep2.astc == ac.stc(HEAVY_WALL) and rep2.nic is None
+
+
+@pytest.mark.parametrize(
+    ("kwargs", "match"),
+    [
+        ({"t2": 0.0}, r"t2\[50 Hz\]: reverberation time must be > 0 s and at most 20 s"),
+        ({"t2": 45.0}, r"t2\[50 Hz\]: reverberation time"),
+        ({"volume": -3.0}, r"volume: must be > 0 m\^3"),
+        ({"area": 0.0}, r"area: must be > 0 m\^2"),
+        ({"l2": np.zeros(16)}, r"l2: must have 21 one-third-octave bands"),
+        ({"b2": np.full(21, np.nan)}, r"b2\[50 Hz\]: background must be given"),
+    ],
+)
+def test_field_test_input_errors(kwargs, match):
+    l1, l2, t, v, s = _levels()
+    args = {"l1": l1, "l2": l2, "t2": t, "volume": v, "area": s}
+    args.update(kwargs)
+    with pytest.raises(ac.FieldInputError, match=match):
+        ac.field_test(**args)
+
+
+def test_field_test_missing_band_names_it():
+    l1, l2, t, v, s = _levels()
+    l1 = l1.copy()
+    l2 = l2.copy()
+    l1[8] = l2[8] = np.nan
+    with pytest.raises(ac.FieldInputError, match=r"bands: .* 315 Hz is missing"):
+        ac.field_test(l1, l2, t, v, s)
+    l2[9] = np.nan
+    with pytest.raises(
+        ac.FieldInputError, match=r"l2\[400 Hz\]: l1 and l2 must be measured in the same bands"
+    ):
+        ac.field_test(l1, l2, t, v, s)
