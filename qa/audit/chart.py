@@ -25,10 +25,14 @@ LEFT, RIGHT, TOP, BOTTOM = 46.0, 10.0, 12.0, 44.0
 
 STYLES = {  # stroke colour, width, dash ("" = solid)
     "designed": ("#1f3a3d", 2.2, ""),
-    "as_found": ("#b3261e", 3.0, ""),
+    "walked": ("#8a5a00", 1.6, "9 3 2 3"),
+    "current": ("#b3261e", 3.0, ""),
     "after": ("#0b6e69", 1.2, "6 4"),
     "contour": ("#6b4fa0", 1.8, "2 3"),
 }
+#: The current curve takes the colour of the wall's state (qa.audit.verdicts tones): red only when
+#: the wall is below target, so a wall that meets its target is never drawn red.
+TONE_STROKE = {"bad": "#b3261e", "good": "#1c7c3a", "pending": "#5d4a8a", "neutral": "#37474f"}
 
 
 @dataclass
@@ -66,21 +70,26 @@ def _segments(values, y_of) -> list[list[tuple[float, float]]]:
     return [s for s in segs if len(s) > 1]
 
 
-def tl_chart(summary: dict, view: str = "verified") -> Chart | None:
+def tl_chart(summary: dict, view: str = "verified", verdict: dict | None = None) -> Chart | None:
     """Chart geometry of a wall's audit (``summary`` from :func:`qa.audit.audit_summary`).
 
-    Returns None when the wall has no rating (no curve). Curves: designed TL, as-found TL of
-    ``view``, TL after each step of the fix-first order, the rating's reference contour placed at
-    the as-found rating (:func:`acoustics.contour`).
+    Returns None when the wall has no rating (no curve). Curves on all 21 bands, labelled with the
+    words of :mod:`qa.audit.verdicts`: designed TL; *current* TL (the ``view``, verified fixes
+    only), coloured by the wall's state when ``verdict`` is given; *as found* TL (every recorded
+    finding open) when it differs from current; TL after each step of the fix-first order; the
+    rating's reference contour placed at the current rating (:func:`acoustics.contour`).
     """
     import acoustics
+
+    from .verdicts import RATINGS
 
     if summary.get("error") or summary.get("designed") is None:
         return None
     v = summary["views"][view]
+    walked = summary["views"].get("walked") or v
     name = summary["rating_name"]
     contour = acoustics.contour(summary["scheme"], v["as_found"]).tolist()
-    curves = [summary["designed_tl"], v["as_found_tl"], contour, *v["after_tl"]]
+    curves = [summary["designed_tl"], v["as_found_tl"], walked["as_found_tl"], contour, *v["after_tl"]]
     vals = [x for c in curves for x in c if x is not None and math.isfinite(x)]
     y_min = 10 * math.floor(min(min(vals), 10) / 10)
     y_max = 10 * math.ceil(max(vals) / 10)
@@ -101,12 +110,23 @@ def tl_chart(summary: dict, view: str = "verified") -> Chart | None:
             Series(f"after-{k}", f"after fix {k}: {name} {rating}", _segments(tl, y_of), stroke, width, dash)
         )
     # The last step of the order is the designed wall itself, drawn below.
-    for key, label, values in (
+    lines = [
         ("contour", f"{name} reference contour at {v['as_found']}", contour),
-        ("designed", f"designed: {name} {summary['designed']}", summary["designed_tl"]),
-        ("as_found", f"as found: {name} {v['as_found']}", v["as_found_tl"]),
-    ):
+        (
+            "designed",
+            f"{RATINGS['designed'].word.lower()}: {name} {summary['designed']}",
+            summary["designed_tl"],
+        ),
+    ]
+    if walked is not v and walked["as_found"] != v["as_found"]:
+        label = f"{RATINGS['as_found'].word.lower()}: {name} {walked['as_found']} (every finding open)"
+        lines.append(("walked", label, walked["as_found_tl"]))
+    label = f"{RATINGS['current'].word.lower()}: {name} {v['as_found']} (verified fixes only)"
+    lines.append(("current", label, v["as_found_tl"]))
+    for key, label, values in lines:
         stroke, width, dash = STYLES[key]
+        if key == "current" and verdict is not None:
+            stroke = TONE_STROKE.get(verdict["tone"], stroke)
         chart.series.append(Series(key, label, _segments(values, y_of), stroke, width, dash))
     return chart
 

@@ -10,10 +10,12 @@ from django.db.models import Q
 
 from .. import units
 from ..access import can
+from ..cautions import CAUTIONS
 from ..choices import OPEN_STATUSES, STATUS_GROUPS, FindingStatus, GapKind, Trade
 from ..models import Event
 from . import chart
 from .fix_order import fix_steps
+from .verdicts import GAINS, NEEDED, RATINGS, STATES, by_level, face_name, rollup
 
 OPEN = OPEN_STATUSES
 
@@ -61,6 +63,12 @@ def finding_size(f, u: str) -> str:
     return " ".join(parts) or "—"
 
 
+def item_caution(finding):
+    """The caution of a finding's seal point (from its checklist template), or None."""
+    point = finding.seal_point
+    return CAUTIONS.get(point.caution) if point is not None and point.caution else None
+
+
 def timeline(job, wall=None, findings=()) -> list[Event]:
     """Events on a wall, its findings and their photos, oldest first (one query)."""
     ids = [str(f.pk) for f in findings]
@@ -89,10 +97,12 @@ def _bar(value: int, top: int) -> int:
     return 0 if top <= 0 or value <= 0 else max(4, round(100 * value / top))
 
 
-def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict:
+def job_overview(params, job, walls: list, audits: dict, findings: list, verdicts: dict) -> dict:
     """Context of the job page: filtered walls, the fix-first list and repeated defects.
 
-    ``findings`` are tuples (id, wall id, trade, status, kind, seal point label) of live findings.
+    ``findings`` are tuples (id, wall id, trade, status, kind, seal point label) of live findings
+    (a crew member's page passes only their trade's); ``verdicts`` come from
+    :func:`qa.audit.verdicts.verdicts_for_walls`.
     """
     kinds, trades = dict(GapKind.choices), dict(Trade.choices)
     f = {k: params.get(k, "") for k in ("level", "type", "trade", "status", "below", "all")}
@@ -122,6 +132,7 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
             {
                 "wall": w,
                 "a": a,
+                "v": verdicts[w.pk],
                 "target": rating_text(a, a["target"]),
                 "designed": rating_text(a, a["designed"]),
                 "walked": rating_text(a, a.get("walked")),
@@ -131,7 +142,7 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
                 else "",
                 "open": sum(r[3] in OPEN for r in mine),
                 "fixed": sum(r[3] == FindingStatus.FIXED for r in mine),
-                "below": bool(a["shortfall"]),
+                "below": verdicts[w.pk]["state"] == "below",
             }
         )
     fix_list, walls_by_id = [], {w.pk: w for w in walls}
@@ -195,14 +206,25 @@ def job_overview(params, job, walls: list, audits: dict, findings: list) -> dict
         "fix_total": len(fix_list),
         "repeated": repeated_rows[:15],
         "below_count": sum(r["below"] for r in rows),
+        "unwalked_count": sum(r["v"]["state"] in ("not_walked", "partly_walked") for r in rows),
         "wall_count": len(walls),
+        "job_cov": rollup(walls, verdicts),
+        "level_cov": by_level(walls, verdicts),
+        "states": STATES,
+        "rating_words": RATINGS,
+        "gains": GAINS,
+        "needed_term": NEEDED,
         "waiting": sum(r[3] == FindingStatus.FIXED for r in findings),
         "filtered": any(f[k] for k in ("level", "type", "trade", "status", "below")),
     }
 
 
-def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
-    """Context of the wall page: chart, audit table, findings with actions, timeline."""
+def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dict) -> dict:
+    """Context of the wall page: verdict, chart, audit table, findings with actions, timeline.
+
+    A crew member sees only their trade's findings and fix-first steps (step numbers stay those of
+    the whole wall's order).
+    """
     u = job.units
     steps = fix_steps(summary)
     by_id = {f.pk: f for f in findings}
@@ -213,6 +235,8 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
         st, f = steps[fid], by_id.get(fid)
         hits = target is not None and st["after"] >= target and not reached
         reached = reached or hits
+        if member.is_crew and (f is None or f.trade != member.trade):
+            continue
         audit_rows.append(
             {
                 "finding": f,
@@ -227,7 +251,7 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
                 "reaches": hits,
             }
         )
-    chart_obj = chart.tl_chart(summary)
+    chart_obj = chart.tl_chart(summary, verdict=verdict)
     crew_trade = member.trade if member.is_crew else None
     items = []
     for f in findings:
@@ -238,6 +262,9 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
             {
                 "f": f,
                 "size": finding_size(f, u),
+                "face": face_name(wall, f.face),
+                "caution": item_caution(f),
+                "feedback": [],
                 "photos": list(f.photos.all()),
                 "step": steps.get(f.pk),
                 "can_fix": can(member, "fix") and mine and f.status in OPEN,
@@ -259,6 +286,11 @@ def wall_overview(job, member, wall, summary: dict, findings: list) -> dict:
     s = summary
     return {
         "summary": s,
+        "v": verdict,
+        "states": STATES,
+        "rating_words": RATINGS,
+        "gains": GAINS,
+        "needed_term": NEEDED,
         "audit_rows": audit_rows,
         "chart_svg": chart.svg(chart_obj),
         "legend": chart.legend(chart_obj),

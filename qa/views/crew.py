@@ -20,12 +20,15 @@ from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_POST
 
 from ..access import job_for, membership, require
+from ..audit.presentation import item_caution
+from ..audit.verdicts import face_name
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES as OPEN
 from ..choices import FindingStatus, PhotoPurpose, Trade
 from ..models import Event, Finding, Photo
 from ..models.findings import TransitionError
 from ..photos import PhotoError, clean_photo
+from . import feedback
 
 NOTE_MAX = 2000
 
@@ -77,6 +80,18 @@ def _grouped(findings) -> OrderedDict:
     return by_level
 
 
+def _dress(request, findings: list) -> tuple[list, list]:
+    """Give each finding its face name, its seal point's caution and its feedback; return
+    (messages for the top of the page, the cautions of the page: general ones and every item's)."""
+    top, beside = feedback.split(request, [f.pk for f in findings])
+    for f in findings:
+        f.face_name = face_name(f.wall, f.face)
+        f.caution_full = item_caution(f)
+        f.feedback = beside.get(f.pk, [])
+    keys = [f.caution_full.key for f in findings if f.caution_full] + list(GENERAL_CAUTIONS)
+    return top, cautions_for(keys)
+
+
 @login_required
 def crew_page(request, job_pk):
     """A crew member's open findings of their trade, by level and wall, with what fixed looks like."""
@@ -95,10 +110,12 @@ def crew_page(request, job_pk):
     if trade:
         findings, waiting = findings.filter(trade=trade), waiting.filter(trade=trade)
     findings = list(findings)
+    top, cautions = _dress(request, findings)
     return render(
         request,
         "qa/audit/crew.html",
         {
+            "page_messages": top,
             "job": job,
             "member": member,
             "trade": trade,
@@ -107,7 +124,7 @@ def crew_page(request, job_pk):
             "by_level": _grouped(findings),
             "count": len(findings),
             "waiting": waiting.count(),
-            "cautions": cautions_for(GENERAL_CAUTIONS),
+            "cautions": cautions,
         },
     )
 
@@ -123,15 +140,17 @@ def check_page(request, job_pk):
         .prefetch_related(_photos_prefetch())
         .order_by("wall__level", "wall__tag", "id")
     )
+    top, cautions = _dress(request, findings)
     return render(
         request,
         "qa/audit/check.html",
         {
+            "page_messages": top,
             "job": job,
             "member": member,
             "by_level": _grouped(findings),
             "count": len(findings),
-            "cautions": cautions_for(GENERAL_CAUTIONS),
+            "cautions": cautions,
         },
     )
 
@@ -165,12 +184,13 @@ def mark_fixed(request, job_pk, finding_pk):
             if request.FILES.get("photo"):
                 store_photo(member.job, finding, request.user, PhotoPurpose.FIX, request.FILES["photo"])
     except (ValueError, PhotoError) as exc:  # TransitionError is a ValueError
-        messages.error(request, _message(exc))
+        messages.error(request, _message(exc), extra_tags=feedback.tag(finding_pk))
     else:
         messages.success(
             request,
             f"{finding.get_kind_display()} on wall {finding.wall.tag} marked fixed. "
             "The inspector will check it.",
+            extra_tags=feedback.tag(finding_pk),
         )
     return redirect(_safe_next(request, reverse("qa:crew", args=[job_pk])))
 
@@ -181,7 +201,7 @@ def check_finding(request, job_pk, finding_pk):
     """The inspector verifies or reopens a fixed finding, optionally with a photo."""
     action = request.POST.get("action")
     if action not in ("verify", "reopen"):
-        messages.error(request, "action: choose verify or reopen")
+        messages.error(request, "action: choose verify or reopen", extra_tags=feedback.tag(finding_pk))
         return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
     try:
         with transaction.atomic():
@@ -193,10 +213,14 @@ def check_finding(request, job_pk, finding_pk):
             if request.FILES.get("photo"):
                 store_photo(member.job, finding, request.user, PhotoPurpose.VERIFY, request.FILES["photo"])
     except (ValueError, PhotoError) as exc:
-        messages.error(request, _message(exc))
+        messages.error(request, _message(exc), extra_tags=feedback.tag(finding_pk))
     else:
         done = "verified" if action == "verify" else "reopened"
-        messages.success(request, f"{finding.get_kind_display()} on wall {finding.wall.tag} {done}.")
+        messages.success(
+            request,
+            f"{finding.get_kind_display()} on wall {finding.wall.tag} {done}.",
+            extra_tags=feedback.tag(finding_pk),
+        )
     return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
 
 

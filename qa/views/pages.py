@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from django.contrib.auth import views as auth_views
 from django.contrib.auth.decorators import login_required
-from django.db.models import Count, Prefetch, Q
+from django.db.models import Count, F, Prefetch, Q
 from django.http import Http404
 from django.shortcuts import render
 
@@ -12,10 +12,12 @@ from .. import units
 from ..access import can, job_for
 from ..audit import audit_summary, audits_for_walls
 from ..audit.presentation import job_overview, wall_overview
+from ..audit.verdicts import face_name, verdicts_for_walls
 from ..cautions import GENERAL_CAUTIONS, cautions_for
-from ..choices import OPEN_STATUSES, FindingStatus
-from ..models import Finding, Member, Photo, SealPoint, Wall
+from ..choices import OPEN_STATUSES, Role
 from ..login_throttle import LoginThrottleMixin
+from ..models import Finding, Member, Photo, SealPoint, Wall
+from . import feedback
 
 OPEN = OPEN_STATUSES
 
@@ -33,9 +35,11 @@ def job_list(request):
         .select_related("job")
         .annotate(
             wall_count=Count("job__walls", filter=Q(job__walls__removed=False), distinct=True),
+            # A crew member counts their own trade's open items only.
             open_count=Count(
                 "job__findings",
-                filter=Q(job__findings__removed=False, job__findings__status__in=OPEN),
+                filter=Q(job__findings__removed=False, job__findings__status__in=OPEN)
+                & (~Q(role=Role.CREW) | Q(job__findings__trade=F("trade"))),
                 distinct=True,
             ),
         )
@@ -55,7 +59,12 @@ def job_page(request, job_pk):
         .filter(job=job)
         .values_list("id", "wall_id", "trade", "status", "kind", "seal_point__label")
     )
-    ctx = job_overview(request.GET, job, walls, audits, findings)
+    params = request.GET
+    if member.is_crew:  # a crew member's counts, fix-first list and repeats are their trade's only
+        findings = [r for r in findings if r[2] == member.trade]
+        params = params.copy()
+        params["trade"] = ""
+    ctx = job_overview(params, job, walls, audits, findings, verdicts_for_walls(walls, audits))
     ctx.update(
         {
             "job": job,
@@ -63,6 +72,7 @@ def job_page(request, job_pk):
             "can_fix": can(member, "fix"),
             "can_verify": can(member, "verify"),
             "cautions": cautions_for(GENERAL_CAUTIONS),
+            "page_messages": feedback.split(request)[0],
         }
     )
     return render(request, "qa/job.html", ctx)
@@ -86,7 +96,13 @@ def wall_page(request, job_pk, wall_pk):
             Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
         )
     )
-    ctx = wall_overview(job, member, wall, summary, findings)
+    verdict = verdicts_for_walls([wall], {wall.pk: summary})[wall.pk]
+    ctx = wall_overview(job, member, wall, summary, findings, verdict)
+    top, beside = feedback.split(request, [it["f"].pk for it in ctx["items"]])
+    for it in ctx["items"]:
+        it["feedback"] = beside.get(it["f"].pk, [])
+    for p in points:
+        p.face_name = face_name(wall, p.face)
     caution_keys = list(GENERAL_CAUTIONS) + sorted({p.caution for p in points if p.caution})
     ctx.update(
         {
@@ -98,6 +114,7 @@ def wall_page(request, job_pk, wall_pk):
             "height": units.fmt(wall.height_m, "size", job.units),
             "cautions": cautions_for(dict.fromkeys(caution_keys)),
             "can_edit": can(member, "edit"),
+            "page_messages": top,
         }
     )
     return render(request, "qa/wall.html", ctx)
