@@ -18,7 +18,8 @@ Spec format (JSON-like; :meth:`Assembly.from_dict`)::
                                                       # | double_studs | furring | points
                      "spacing": 0.406,                # m, stud/furring centres or point grid
                      "stiffness": null,               # N/m per m (lines) or N/m per point; null = rigid
-                     "resilient_channel": {"leaf": 1, "spacing": 0.61, "stiffness": 1.5e5}},
+                     "resilient_channel": {"leaf": 1, "spacing": 0.61, "stiffness": 1.5e5,
+                                           "shorted": 0.0}},   # share of crossings screwed into studs
       "sealing": {"perimeter": "sealed"}              # or {"perimeter": "unsealed", "gap_width": 0.003}
     }
 
@@ -121,7 +122,8 @@ class Leaf:
 
     def tl(self, f: Any, area: float | None = None) -> np.ndarray:
         """Single-leaf TL at f, dB (Sharp/Bies method, :func:`acoustics.wall_physics.single_leaf_tl`)."""
-        return single_leaf_tl(f, self.m, self.fc, self.eta(f), area=area)
+        heavy = any(x.edge_losses for x in self.layers)
+        return single_leaf_tl(f, self.m, self.fc, self.eta(f), area=area, radiation=heavy)
 
     def to_dict(self) -> dict[str, Any]:
         return {
@@ -153,6 +155,9 @@ class Connection:
     channel_leaf: int | None = None
     channel_spacing: float = 0.61
     channel_stiffness: float = CHANNEL_STIFFNESS
+    #: Fraction of the channel-stud crossings where a screw goes through the channel into the stud (0-1):
+    #: those crossings are rigid point ties (:func:`acoustics.structural.bridge_tau`).
+    channel_shorted: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -224,6 +229,7 @@ class Assembly:
                 "leaf": c.channel_leaf,
                 "spacing": c.channel_spacing,
                 "stiffness": c.channel_stiffness,
+                "shorted": c.channel_shorted,
             }
         out["connection"] = conn
         out["sealing"] = (
@@ -283,4 +289,5 @@ def _connection(raw: dict, n_leaves: int) -> Connection:
         int(rc["leaf"]),
         _num(rc, "spacing", 0.61, 0.2, 1.5, "resilient_channel"),
         _num(rc, "stiffness", CHANNEL_STIFFNESS, 1e3, 1e9, "resilient_channel"),
+        _num(rc, "shorted", 0.0, 0.0, 1.0, "resilient_channel"),
     )

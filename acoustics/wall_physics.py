@@ -25,6 +25,7 @@ from . import apertures as ap
 from .constants import C0, RHO0
 
 __all__ = [
+    "radiation_factor_above_fc",
     "mass_law",
     "finite_size_tau",
     "single_leaf_tl",
@@ -85,8 +86,30 @@ def _limp_tau(f: np.ndarray, m: float, area: float | None, c0: float, rho0: floa
     return tau
 
 
+def radiation_factor_above_fc(f: Any, fc: float) -> np.ndarray:
+    """Radiation factor of free bending waves above the critical frequency, dimensionless.
+
+    Notes
+    -----
+    sigma = 1 / sqrt(1 - fc/f) for f > fc, at most 2 (ISO 12354-1 Annex B, sigma_1 and the cap of 2;
+    from memory); 1 at and below fc, where the single-leaf method has its own transition.
+    """
+    f = np.asarray(f, float)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        sigma = 1.0 / np.sqrt(1.0 - fc / f)
+    return np.where(f > fc, np.minimum(sigma, 2.0), 1.0)
+
+
 def single_leaf_tl(
-    f: Any, m: float, fc: float, eta: Any, *, area: float | None = None, c0: float = C0, rho0: float = RHO0
+    f: Any,
+    m: float,
+    fc: float,
+    eta: Any,
+    *,
+    area: float | None = None,
+    radiation: bool = False,
+    c0: float = C0,
+    rho0: float = RHO0,
 ) -> np.ndarray:
     """TL of a single leaf by Sharp's method as given by Bies (Section 7.2.4.1), dB.
 
@@ -102,21 +125,31 @@ def single_leaf_tl(
         Total loss factor (broadcast with f).
     area : float, optional
         Panel area, m^2; enables the finite-size correction at low frequency.
+    radiation : bool
+        Heavy leaf (masonry, concrete): above fc the resonant transmission carries the radiation factor
+        sigma^2 of free bending waves, TL - 20 lg sigma (ISO 12354-1 Annex B, Formula B.1 for f > fc,
+        from memory; :func:`radiation_factor_above_fc`). Sharp's form assumes sigma = 1, which reads
+        heavy walls 3-4 points high (their fc lies at or below the rated range).
 
     Notes
     -----
     f <= fc/2: limp panel (field mass law, or Sewell's finite panel where higher);
     f >= fc: TL_0 + 10 lg(2 eta f / (pi fc)) (Bies Eq. 7.44), never above the limp value;
     between: straight line in lg f.
+
+    References
+    ----------
+    .. [1] Bies, Hansen & Howard (2017) *Engineering Noise Control* 5th ed., Section 7.2.4.1 [TR].
+    .. [2] ISO 12354-1:2017, Annex B: tau = (rho0 c0 / (pi f m))^2 pi fc sigma^2 / (2 f eta) above fc
+       (from memory).
     """
     f = np.asarray(f, float)
     eta = np.broadcast_to(np.asarray(eta, float), f.shape)
     lo = -10 * np.log10(_limp_tau(f, m, area, c0, rho0))
 
     def above(ff: np.ndarray, ee: np.ndarray) -> np.ndarray:
-        return mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(
-            2 * ee * ff / (np.pi * fc)
-        )
+        tl = mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(2 * ee * ff / (np.pi * fc))
+        return tl - 20 * np.log10(radiation_factor_above_fc(ff, fc)) if radiation else tl
 
     tl = np.where(f <= fc / 2, lo, np.minimum(above(f, eta), lo))
     mid = (f > fc / 2) & (f < fc)
@@ -187,7 +220,16 @@ def cavity_absorption(
 
 
 def cavity_path_tl(
-    f: Any, tl1: Any, tl2: Any, tl_m: Any, f0: float, depth: float, alpha: Any = None, *, c0: float = C0
+    f: Any,
+    tl1: Any,
+    tl2: Any,
+    tl_m: Any,
+    f0: float,
+    depth: float,
+    alpha: Any = None,
+    *,
+    floor: Any = None,
+    c0: float = C0,
 ) -> np.ndarray:
     """TL of the cavity path of a double leaf (Sharp, as given by Bies Eq. 7.64), dB.
 
@@ -203,11 +245,15 @@ def cavity_path_tl(
         Mass-air-mass resonance, Hz. depth : cavity depth d, m.
     alpha : array_like, optional
         Cavity absorption coefficient; None = fully absorbing (Sharp's assumption).
+    floor : array_like, optional
+        Lowest TL above f0, dB (default TL_M). A leaf near or above its own coincidence transmits more
+        than a limp leaf of its mass, so the wall model passes TL_M minus the leaves' coincidence dips.
 
     Notes
     -----
     TL = TL_M (f <= f0); TL1 + TL2 + 20 lg(2kd) (f0 < f < f_l); TL1 + TL2 + 6 (f >= f_l = c0/(2 pi d));
-    with ``alpha``: tau >= tau1 tau2 / (4 alpha) (diffuse cavity, derived).
+    with ``alpha``: tau >= tau1 tau2 / (4 alpha) (diffuse cavity, derived). Above f0 the result is never
+    below ``floor``, so the branches join without a step.
     """
     f = np.asarray(f, float)
     t12 = 10 ** (-(np.asarray(tl1, float) + np.asarray(tl2, float)) / 10)
@@ -216,7 +262,11 @@ def cavity_path_tl(
     tau = np.where(f < fl, t12 / (2 * k * depth) ** 2, t12 / 4)
     if alpha is not None:
         tau = np.maximum(tau, t12 / (4 * np.asarray(alpha, float)))
-    return np.where(f <= f0, np.asarray(tl_m, float), -10 * np.log10(tau))
+    tl_m = np.asarray(tl_m, float)
+    # Above f0 never below the floor: at f0 Sharp's middle branch lies 5.5 dB under TL_M (the field-incidence
+    # correction counted in both leaves), which would make a step; the branches meet just above f0.
+    low = tl_m if floor is None else np.minimum(tl_m, np.asarray(floor, float))
+    return np.where(f <= f0, tl_m, np.maximum(low, -10 * np.log10(tau)))
 
 
 #: Angles for the diffuse-field average of the lumped resonance model, rad (field incidence, 0-78 deg).

@@ -10,9 +10,11 @@ Construction details the tables do not state are assumptions written in the row:
 406 mm, steel studs at 610 mm, staggered studs on a 140 mm plate, "insulation"/"absorption" = batt
 of the stated or full stud depth (flow resistivity 10 kPa s/m^2, from memory).
 
-Acceptance (issue 4), strict for every row: mean absolute error <= 3 points over all rows and no row off by
-more than 6 points. Empty cavities rely on the damped mass-air-mass resonance of acoustics.walls
-(resonance_factor); without it the empty steel-stud rows were 8 points high.
+Acceptance (issue 13), strict for every row: mean absolute error <= 2.0 points over all rows, no row off by
+more than 5 points, and no construction family (wood stud, steel stud, channel, double/staggered,
+masonry/concrete, glass, damped) biased by more than +-2 points on average. Empty cavities rely on the damped
+mass-air-mass resonance of the wall model (resonance_factor); without it the empty steel-stud rows were 8
+points high. Assemblies never used to tune the model are checked in test_published_assemblies_heldout.py.
 """
 
 from __future__ import annotations
@@ -181,6 +183,143 @@ ASSEMBLIES += [
         None,
     ),
 ]
+
+# Rows added for issue 13 (single and laminated glass, concrete, block with and without linings, heavy-gauge
+# steel studs, damped board, double and staggered studs with one and two layers). Sources:
+# IR761 = Halliwell, Nightingale, Warnock & Birta (1998) *Gypsum Board Walls: Transmission Loss Data*, NRC
+#   Canada IRC-IR-761 (values from memory of its tables, rounded; marked so);
+# Q82 = Quirt, J. D. (1982) Sound transmission through windows I. Single and double glazing, JASA 72(3)
+#   834-844 (monolithic and laminated glass STC by thickness; from memory);
+# B12354 = ISO 12354-1:2017 Annex B empirical mass law for heavy walls, Rw = 37.5 lg m' - 42 (m' >= 150
+#   kg/m^2; from memory), STC taken equal to Rw for heavy homogeneous walls (common practice, no source);
+# TEK = NCMA TEK 13-1C (2012) *Sound Transmission Class Ratings for Concrete Masonry Walls*, STC = 20.6 lg W
+#   + 12.9, W wall weight in lb/ft^2 (equation from memory);
+# DMP = published laboratory tests of damped laminated gypsum board (viscoelastic core) on studs, generic
+#   manufacturers' data sheets (from memory, unverified).
+G13X = "gypsum_12.7_x"
+STEEL_HEAVY = 5.0e7  # N/m per m: 1.37 mm (16 ga) studs, near rigid (order of magnitude, from memory)
+
+
+def _single(material, thickness=None):
+    layer = {"material": material} if thickness is None else {"material": material, "thickness": thickness}
+    return {"leaves": [{"layers": [layer]}]}
+
+
+ASSEMBLIES += [
+    *[
+        (f"float glass {mm} mm", "Q82 (from memory)", _single("glass_6", mm / 1000), pub, None)
+        for mm, pub in ((3, 28), (4, 29), (5, 30), (6, 31), (12, 35), (19, 37))
+    ],
+    *[
+        (
+            f"laminated glass {mm} mm (PVB interlayer)",
+            "Q82 (from memory)",
+            _single("laminated_glass_6.4", mm / 1000),
+            pub,
+            None,
+        )
+        for mm, pub in ((6.4, 35), (12.8, 38))
+    ],
+    *[
+        (f"concrete {mm} mm", "B12354", _single("concrete_150", mm / 1000), pub, None)
+        for mm, pub in ((100, 46), (125, 50), (200, 58), (250, 61))
+    ],
+    ("calcium silicate masonry 200 mm", "B12354", _single("calcium_silicate_200"), 54, None),
+    ("CMU 140 mm hollow", "TEK (from memory)", _single("cmu_140"), 44, None),
+    ("CMU 190 mm fully grouted", "TEK (from memory)", _single("cmu_190_grouted"), 52, None),
+    ("CMU 290 mm hollow", "TEK (from memory)", _single("cmu_290"), 50, None),
+    (
+        "CMU 190 mm + 16 mm board on independent 41 mm steel studs 25 mm off the block, 38 mm batt",
+        "IR761-type lining (from memory)",
+        _dbl(["cmu_190"], [G16], 0.066, "none", 0.038),
+        59,
+        None,
+    ),
+    (
+        "heavy-gauge steel studs 92 mm at 406 mm, 16 mm board 1/1, batt",
+        "IR761 (from memory)",
+        {
+            **_dbl([G16], [G16], 0.092, "steel_stud", 0.089),
+            "connection": {"type": "steel_stud", "spacing": 0.406, "stiffness": STEEL_HEAVY},
+        },
+        40,
+        None,
+    ),
+    (
+        "heavy-gauge steel studs 92 mm at 406 mm, 16 mm board 2/2, batt",
+        "IR761 (from memory)",
+        {
+            **_dbl([G16] * 2, [G16] * 2, 0.092, "steel_stud", 0.089),
+            "connection": {"type": "steel_stud", "spacing": 0.406, "stiffness": STEEL_HEAVY},
+        },
+        48,
+        None,
+    ),
+    (
+        "wood studs 38x89, 16 mm Type X 1/1, batt",
+        "IR761 (from memory)",
+        _dbl([G16], [G16], 0.089, "wood_stud", 0.089),
+        36,
+        None,
+    ),
+    (
+        "wood studs 38x89, damped board one side, 16 mm Type X other side, batt",
+        "DMP (from memory)",
+        _dbl(["damped_gypsum_12.7"], [G16], 0.089, "wood_stud", 0.089),
+        46,
+        None,
+    ),
+    (
+        "wood studs 38x89, damped board both sides, batt",
+        "DMP (from memory)",
+        _dbl(["damped_gypsum_12.7"], ["damped_gypsum_12.7"], 0.089, "wood_stud", 0.089),
+        50,
+        None,
+    ),
+    (
+        "steel studs 92 mm, damped board one side, 16 mm Type X other side, batt",
+        "DMP (from memory)",
+        _dbl(["damped_gypsum_12.7"], [G16], 0.092, "steel_stud", 0.089),
+        52,
+        None,
+    ),
+    (
+        "steel studs 92 mm, damped board both sides, batt",
+        "DMP (from memory)",
+        _dbl(["damped_gypsum_12.7"], ["damped_gypsum_12.7"], 0.092, "steel_stud", 0.089),
+        55,
+        None,
+    ),
+    (
+        "double wood studs, 25 mm gap, 16 mm Type X 2/2, batt",
+        "IR761 (from memory)",
+        _dbl([G16] * 2, [G16] * 2, 0.203, "double_studs", 0.089),
+        63,
+        None,
+    ),
+    (
+        "double wood studs, 25 mm gap, 16 mm Type X 1/2, batt",
+        "IR761 (from memory)",
+        _dbl([G16], [G16] * 2, 0.203, "double_studs", 0.089),
+        60,
+        None,
+    ),
+    (
+        "staggered wood studs on 2x6 plate, 16 mm Type X 2/2, batt",
+        "IR761 (from memory)",
+        _dbl([G16] * 2, [G16] * 2, 0.140, "staggered_studs", 0.089),
+        55,
+        None,
+    ),
+    (
+        "wood studs, resilient channel one side, 16 mm Type X 2/2, batt",
+        "IR761 (from memory)",
+        _dbl([G16] * 2, [G16] * 2, 0.089, "wood_stud", 0.089, 1),
+        58,
+        None,
+    ),
+]
+
 # Curve shape known to miss (strict xfail, so a model fix shows up): above 1 kHz the model lets steel-stud
 # walls climb with the cavity path (TL1 + TL2 + 6), while measured curves flatten near 50-60 dB and dip
 # hard at coincidence; the CMU plateau of the Springer row is not modelled (Sharp above fc keeps rising).
@@ -200,26 +339,60 @@ def octave(tl: np.ndarray) -> np.ndarray:
     return -10 * np.log10(tau.reshape(6, 3).mean(axis=1))
 
 
-def table() -> list[tuple[str, str, int, int]]:
-    """(label, source, published STC, predicted STC) for every row."""
-    return [(lab, src, pub, int(stc(predict(spec).tl))) for lab, src, spec, pub, _ in ASSEMBLIES]
+FAMILIES = ("wood stud", "steel stud", "channel", "double/staggered", "masonry/concrete", "glass", "damped")
+
+
+def family(spec: dict) -> str:
+    """The construction family a row is judged in (issue 13 checks)."""
+    layers = [
+        lay if isinstance(lay, str) else lay["material"] for lf in spec["leaves"] for lay in lf["layers"]
+    ]
+    conn = spec.get("connection", {})
+    if any("damped" in m for m in layers):
+        return "damped"
+    if any("glass" in m for m in layers):
+        return "glass"
+    if any(m.startswith(("cmu", "concrete", "calcium")) for m in layers):
+        return "masonry/concrete"
+    if "resilient_channel" in conn:
+        return "channel"
+    if conn.get("type") in ("double_studs", "staggered_studs"):
+        return "double/staggered"
+    return "steel stud" if conn.get("type") == "steel_stud" else "wood stud"
+
+
+def table(rows: list = ASSEMBLIES) -> list[tuple[str, str, str, int, int]]:
+    """(label, source, family, published STC, predicted STC) for every row."""
+    return [(lab, src, family(spec), pub, int(stc(predict(spec).tl))) for lab, src, spec, pub, *_ in rows]
 
 
 ROWS = table()
 
 
 def test_enough_rows_from_named_sources():
-    assert len(ROWS) >= 12 and all(src for _, src, _, _ in ROWS)
+    assert len(ROWS) >= 70 and all(src for _, src, _, _, _ in ROWS)
+    assert {r[2] for r in ROWS} == set(FAMILIES)
 
 
-def test_mean_absolute_error_at_most_3():
-    err = np.array([pred - pub for _, _, pub, pred in ROWS])
-    assert np.abs(err).mean() <= 3.0, err
+def test_mean_absolute_error_at_most_2():
+    """Issue 13: mean absolute error <= 2.0 STC over all rows."""
+    err = np.array([pred - pub for _, _, _, pub, pred in ROWS])
+    assert np.abs(err).mean() <= 2.0, err
 
 
-@pytest.mark.parametrize(("label", "source", "pub", "pred"), ROWS, ids=[f"{r[1]}: {r[0]}" for r in ROWS])
-def test_each_row_within_6_points(label, source, pub, pred):
-    assert abs(pred - pub) <= 6, f"{source} {label}: published {pub}, predicted {pred}"
+@pytest.mark.parametrize("fam", FAMILIES)
+def test_no_family_biased_more_than_2(fam):
+    """Issue 13: the mean signed error of each construction family lies within +-2 STC."""
+    err = [pred - pub for _, _, f, pub, pred in ROWS if f == fam]
+    assert abs(np.mean(err)) <= 2.0, (fam, err)
+
+
+@pytest.mark.parametrize(
+    ("label", "source", "fam", "pub", "pred"), ROWS, ids=[f"{r[1]}: {r[0]}" for r in ROWS]
+)
+def test_each_row_within_5_points(label, source, fam, pub, pred):
+    """Issue 13: no row off by more than 5 points."""
+    assert abs(pred - pub) <= 5, f"{source} {label}: published {pub}, predicted {pred}"
 
 
 def _shape_param(r):

@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from acoustics.assembly import Assembly, WallSpecError
-from acoustics.bands import N_BANDS
+from acoustics.bands import BANDS, N_BANDS
 from acoustics.ratings import stc
 from acoustics.wall_physics import (
     cavity_path_tl,
@@ -161,3 +161,84 @@ def test_bad_specs_name_the_field(spec, match):
 
 def test_wall_spec_error_is_a_value_error():
     assert issubclass(WallSpecError, ValueError)
+
+
+# --- wall-model corrections of issue 13, each against its source ------------------------------------------
+
+
+def _single(material, thickness=None):
+    layer = {"material": material} if thickness is None else {"material": material, "thickness": thickness}
+    return {"leaves": [{"layers": [layer]}]}
+
+
+def _stud(a, b, conn="wood_stud", depth=0.089, fill=0.089, **extra):
+    return {
+        "leaves": [{"layers": list(a)}, {"layers": list(b)}],
+        "cavity": {"depth": depth, "absorber": {"thickness": fill}},
+        "connection": {"type": conn, **extra},
+    }
+
+
+@pytest.mark.parametrize(("mm", "published"), [(6, 31), (12, 35)])
+def test_glass_with_mounted_loss_factor(mm, published):
+    """Quirt (1982) JASA 72(3) 834-844 (from memory): monolithic glass 6 mm STC 31, 12 mm 35; +-1. With the
+    bare-glass loss factor (0.005) both read 27-28, barely rising with thickness."""
+    assert abs(stc(predict(_single("glass_6", mm / 1000)).tl) - published) <= 1
+    bare = {"leaves": [{"layers": [{"material": "glass_6", "thickness": mm / 1000}], "loss_factor": 0.005}]}
+    assert stc(predict(bare).tl) <= published - 3
+
+
+def test_radiation_factor_above_coincidence():
+    """ISO 12354-1 Annex B sigma_1 = 1/sqrt(1 - fc/f) above fc, at most 2 (from memory); exact values."""
+    from acoustics.wall_physics import radiation_factor_above_fc
+
+    sigma = radiation_factor_above_fc(np.array([50.0, 100.0, 200.0, 400.0, 101.0]), 100.0)
+    np.testing.assert_allclose(sigma, [1.0, 1.0, np.sqrt(2.0), 1 / np.sqrt(0.75), 2.0], rtol=1e-12)
+
+
+@pytest.mark.parametrize(("mm", "published"), [(100, 46), (150, 53), (200, 58), (250, 61)])
+def test_concrete_follows_annex_b_mass_law(mm, published):
+    """ISO 12354-1 Annex B empirical Rw = 37.5 lg m' - 42 (from memory; STC ~ Rw for heavy walls, common
+    practice): 228-570 kg/m^2 -> 46, 53, 58, 61. Within 2 (the Sharp form without sigma read 3-4 high)."""
+    assert abs(stc(predict(_single("concrete_150", mm / 1000)).tl) - published) <= 2
+
+
+def test_decoupled_double_wall_high_frequency_limit():
+    """Issue 13 / ASHRAE (2019) Ch. 49 Table 40 double steel studs, 2 x 16 mm each side: laboratories
+    measure 60-75 dB at 1-2.5 kHz (octave 71 and 69 dB at 1 and 2 kHz), not the 75-107 dB of Sharp's
+    TL1 + TL2 + 6."""
+    p = predict(_stud(["gypsum_15.9_x"] * 2, ["gypsum_15.9_x"] * 2, "double_studs", 0.209))
+    band = (BANDS >= 1000) & (BANDS <= 2500)
+    assert np.all((p.tl[band] >= 60) & (p.tl[band] <= 75)), p.tl[band]
+
+
+def test_damped_board_acts_on_the_stud_path():
+    """Damped laminated board (viscoelastic core) on wood studs gains about ten points over plain board
+    (published laboratory tests, from memory): one face >= 7, both faces >= 10; the stud path drops by
+    10 lg(eta / 0.03) per damped face (Craik & Smith 2000, SEA of the stud path)."""
+    plain = stc(predict(_stud(["gypsum_15.9_x"], ["gypsum_15.9_x"])).tl)
+    one = stc(predict(_stud(["damped_gypsum_12.7"], ["gypsum_15.9_x"])).tl)
+    both = stc(predict(_stud(["damped_gypsum_12.7"], ["damped_gypsum_12.7"])).tl)
+    assert one - plain >= 7 and both - plain >= 10 and both > one
+
+
+def test_screws_through_channel_are_rigid_point_ties():
+    """A channel screwed into the studs at every crossing is Sharp's rigid point bridge on the channel grid
+    (Vigran Eq. 8.26): shorted = 1 equals an infinitely stiff channel; the rating falls as more crossings are
+    shorted."""
+    g = ["gypsum_15.9_x"]
+    spec = _stud(g, g, resilient_channel={"leaf": 1, "shorted": 1.0})
+    stiff = _stud(g, g, resilient_channel={"leaf": 1, "stiffness": 1e9})
+    np.testing.assert_allclose(predict(spec).tl, predict(stiff).tl, atol=0.3)
+    ratings = [stc(predict(_stud(g, g, resilient_channel={"leaf": 1, "shorted": q})).tl) for q in (0, 0.2, 1)]
+    assert ratings[0] > ratings[1] > ratings[2]
+    with pytest.raises(WallSpecError, match="resilient_channel.shorted must be between 0 and 1"):
+        Assembly.from_dict(_stud(g, g, resilient_channel={"leaf": 1, "shorted": 2}))
+
+
+@pytest.mark.parametrize("stiffness", [1e5, 1e6, 3e6, 1e7, 3e7, 1e8, 1e9])
+def test_stiff_stud_moves_f0_without_a_step(stiffness):
+    """A stiffer steel stud raises f0 (spring per unit area in Hopkins Eq. 4.89) but adjacent bands never
+    differ by 8 dB or more (before: a 10 dB step where the cavity path switched branch at the raised f0)."""
+    p = predict(_stud(["gypsum_15.9_x"], ["gypsum_15.9_x"], "steel_stud", 0.092, stiffness=stiffness))
+    assert np.abs(np.diff(p.tl[3:20])).max() < 8.0

@@ -1,7 +1,8 @@
-"""Print predicted vs published STC of the generic assemblies in test_published_assemblies.py.
+"""Print predicted vs published STC of the generic assemblies, by row and by construction family.
 
-Run from the repository root: ``python tests/bench/report_assemblies.py``. Prints a Markdown table for
-the docs and the mean absolute error; not a timed benchmark.
+Run from the repository root: ``python tests/bench/report_assemblies.py``. Prints Markdown tables for the
+contributor guide (tuning set of test_published_assemblies.py and the held-out set of
+test_published_assemblies_heldout.py); not a timed benchmark.
 """
 
 from __future__ import annotations
@@ -9,30 +10,49 @@ from __future__ import annotations
 import importlib.util
 import pathlib
 import sys
+from types import ModuleType
 
 import numpy as np
 
 ROOT = pathlib.Path(__file__).resolve().parents[2]
+TESTS = ROOT / "tests" / "acoustics"
 sys.path.insert(0, str(ROOT))
-_spec = importlib.util.spec_from_file_location(
-    "published_assemblies", ROOT / "tests" / "acoustics" / "test_published_assemblies.py"
-)
-mod = importlib.util.module_from_spec(_spec)
-_spec.loader.exec_module(mod)
+sys.path.insert(0, str(TESTS))
+
+
+def _load(name: str) -> ModuleType:
+    spec = importlib.util.spec_from_file_location(name, TESTS / f"{name}.py")
+    assert spec is not None and spec.loader is not None
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    return mod
+
+
+def families(rows: list, order: tuple[str, ...]) -> None:
+    print("| family | rows | mean error | mean abs. error | worst |")
+    print("|---|---|---|---|---|")
+    for fam in order:
+        e = np.array([pred - pub for _, _, f, pub, pred in rows if f == fam])
+        if e.size:
+            worst = int(e[np.argmax(np.abs(e))])
+            print(f"| {fam} | {e.size} | {e.mean():+.2f} | {np.abs(e).mean():.2f} | {worst:+d} |")
+    e = np.array([pred - pub for *_, pub, pred in rows])
+    worst = int(e[np.argmax(np.abs(e))])
+    print(f"| **all** | {e.size} | {e.mean():+.2f} | {np.abs(e).mean():.2f} | {worst:+d} |")
 
 
 def main() -> None:
-    print("| assembly | source | published STC | predicted STC | difference |")
-    print("|---|---|---|---|---|")
-    errs = []
-    for label, source, pub, pred in mod.ROWS:
-        errs.append(pred - pub)
-        print(f"| {label} | {source} | {pub} | {pred} | {pred - pub:+d} |")
-    e = np.array(errs)
-    print(
-        f"\n{len(e)} assemblies: mean absolute error {np.abs(e).mean():.2f}, mean error {e.mean():+.2f}, "
-        f"largest {np.abs(e).max()} points"
-    )
+    tuned = _load("test_published_assemblies")
+    held = _load("test_published_assemblies_heldout")
+    print("Predicted vs published laboratory STC by construction family (tuning set)\n")
+    families(tuned.ROWS, tuned.FAMILIES)
+    print("\nHeld-out set (not used for tuning)\n")
+    families(held.ROWS, tuned.FAMILIES)
+    if "--rows" in sys.argv:
+        print("\n| assembly | source | family | published STC | predicted STC | difference |")
+        print("|---|---|---|---|---|---|")
+        for label, source, fam, pub, pred in [*tuned.ROWS, *held.ROWS]:
+            print(f"| {label} | {source} | {fam} | {pub} | {pred} | {pred - pub:+d} |")
 
 
 if __name__ == "__main__":
