@@ -51,6 +51,7 @@ References
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 import numpy as np
@@ -89,9 +90,14 @@ class JunctionError(AcousticsError):
     """A junction or element parameter is outside what the method accepts (names the field and rule)."""
 
 
-def _pos(value: Any, name: str, unit: str) -> np.ndarray:
+def _pos(value: Any, name: str, unit: str) -> Any:
+    # Scalars take the fast path: the prediction validates a few hundred numbers per wall.
+    if isinstance(value, (int, float)):
+        if not (value > 0 and math.isfinite(value)):
+            raise JunctionError(f"{name} must be finite and > 0 {unit}")
+        return float(value)
     v = np.asarray(value, dtype=float)
-    if not np.all(np.isfinite(v)) or np.any(v <= 0):
+    if not (v.size and v.min() > 0 and np.isfinite(v.max())):
         raise JunctionError(f"{name} must be finite and > 0 {unit}")
     return v
 
