@@ -86,7 +86,7 @@ def ref_rw(curve: Sequence[float], decimal: bool = False) -> float:
     s = min(min(u) + 320, (sum(u) + 320) // 16) // step * step
     while sum(max(0, s + r - xi) for xi, r in zip(x, ref, strict=True)) > 320:
         s -= step
-    return s / 10.0 if decimal else s // 10
+    return s / 10.0 if decimal else int(s // 10)
 
 
 def ref_spectrum_level(curve: Sequence[float], column: int) -> float | None:
@@ -103,7 +103,7 @@ def ref_spectrum_level(curve: Sequence[float], column: int) -> float | None:
             return None
         xb = _half_up(curve[b] * 10.0) / 10.0
         terms.append(10.0 ** ((spec[b] - xb) / 10.0))
-    return -10.0 * math.log10(math.fsum(terms))
+    return float(-10.0 * math.log10(math.fsum(terms)))
 
 
 def ref_oitc(curve: Sequence[float]) -> float:

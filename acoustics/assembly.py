@@ -69,7 +69,7 @@ class WallSpecError(AcousticsError):
     """A wall spec is malformed; the message names the field and the rule."""
 
 
-def _num(d: dict, key: str, default: Any, lo: float, hi: float, where: str) -> Any:
+def _num(d: dict[str, Any], key: str, default: Any, lo: float, hi: float, where: str) -> Any:
     v = d.get(key, default)
     if v is None:
         return None
@@ -117,7 +117,8 @@ class Leaf:
         else:
             base = sum(x.loss_factor * x.bending_stiffness for x in self.layers) / self.stiffness
         if any(x.edge_losses for x in self.layers):
-            return base + self.m / (485.0 * np.sqrt(f))
+            out: np.ndarray = base + self.m / (485.0 * np.sqrt(f))
+            return out
         return np.full(f.shape, base)
 
     def tl(self, f: Any, area: float | None = None) -> np.ndarray:
@@ -170,6 +171,18 @@ class Assembly:
     area: float = DEFAULT_AREA
     height: float = 2.7
     perimeter_gap: float = 0.0
+
+    @property
+    def gap(self) -> Cavity:
+        """The cavity of a two-leaf wall (a single leaf has none)."""
+        if self.cavity is None:
+            raise WallSpecError("a single-leaf wall has no cavity")
+        return self.cavity
+
+    @property
+    def pitch(self) -> float:
+        """Spacing of the studs, furring or point grid, m (0 where the connection has none)."""
+        return 0.0 if self.connection.spacing is None else self.connection.spacing
 
     @classmethod
     def from_dict(cls, spec: dict[str, Any]) -> Assembly:
@@ -262,7 +275,7 @@ def _leaf(raw: Any, where: str) -> Leaf:
     return Leaf(tuple(mats), eta)
 
 
-def _connection(raw: dict, n_leaves: int) -> Connection:
+def _connection(raw: dict[str, Any], n_leaves: int) -> Connection:
     if not isinstance(raw, dict):
         raise WallSpecError("spec.connection must be a mapping")
     kind = raw.get("type", "none" if n_leaves == 2 else "none")

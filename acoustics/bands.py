@@ -127,7 +127,7 @@ def sub_band_frequencies(points: int = 16) -> np.ndarray:
         raise ValueError("points must be at least 1")
     lower, upper = band_edges()
     fractions = (np.arange(points) + 0.5) / points
-    return lower[:, None] * (upper / lower)[:, None] ** fractions[None, :]
+    return np.asarray(lower[:, None] * (upper / lower)[:, None] ** fractions[None, :], dtype=float)
 
 
 def averaging_frequencies(points: int = 41) -> np.ndarray:
@@ -153,4 +153,5 @@ def averaging_frequencies(points: int = 41) -> np.ndarray:
         raise ValueError("points must be at least 2")
     lo = np.log(BANDS * 2.0 ** (-1.0 / 6.0))
     hi = np.log(BANDS * 2.0 ** (1.0 / 6.0))
-    return np.exp(lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, points)[None, :])
+    grid = lo[:, None] + (hi - lo)[:, None] * np.linspace(0.0, 1.0, points)[None, :]
+    return np.asarray(np.exp(grid), dtype=float)

@@ -222,11 +222,14 @@ def _stc_rows(x: Floats, round_tl: bool = True) -> Floats:
     if round_tl:
         u = np.floor(x[:, _STC] + _HALF) - _STC_SHAPE
         cap = u.min(axis=1) + 8.0
-        return np.minimum(_largest_shift(u, 32.0, 1.0), cap)
-    # Unrounded TL: the sums are no longer integers; 1e-6 dB of slack absorbs float rounding.
-    u = x[:, _STC] - _STC_SHAPE
-    cap = np.floor(u.min(axis=1) + 8.0 + 1e-9)
-    return np.minimum(_largest_shift(u, 32.0 + 1e-6, 1.0), cap)
+        limit = 32.0
+    else:
+        # Unrounded TL: the sums are no longer integers; 1e-6 dB of slack absorbs float rounding.
+        u = x[:, _STC] - _STC_SHAPE
+        cap = np.floor(u.min(axis=1) + 8.0 + 1e-9)
+        limit = 32.0 + 1e-6
+    out: Floats = np.minimum(_largest_shift(u, limit, 1.0), cap)
+    return out
 
 
 def _rw_rows(x: Floats, decimal: bool = False) -> Floats:

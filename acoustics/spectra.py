@@ -13,6 +13,8 @@ References
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 import numpy as np
 
 from .bands import N_BANDS, band_slice
@@ -105,7 +107,7 @@ _SPEC2_ENL = [
 ]
 
 
-def _restrict(spec: list[float], low: int, high: int) -> np.ndarray:
+def _restrict(spec: Sequence[float], low: int, high: int) -> np.ndarray:
     out = np.full(N_BANDS, np.nan)
     sl = band_slice(low, high)
     out[sl] = np.asarray(spec, dtype=float)[sl]

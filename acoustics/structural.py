@@ -31,14 +31,15 @@ def _line_mobility(f: np.ndarray, leaf: Leaf) -> np.ndarray:
     """Line-force mobility of an infinite plate per unit length, m/(N s) per m [3]_."""
     w = 2 * np.pi * f
     cb = (w**2 * leaf.stiffness / leaf.m) ** 0.25
-    return (1 - 1j) / (4 * leaf.m * cb)
+    out: np.ndarray = (1 - 1j) / (4 * leaf.m * cb)
+    return out
 
 
 def _compliance(y1: np.ndarray, y2: np.ndarray, f: np.ndarray, k: float | None) -> np.ndarray:
     if k is None:
         return np.ones_like(f)
     ys = 1j * 2 * np.pi * f / (k * (1 + 0.1j))
-    return np.minimum(1.0, np.abs(y1 + y2) ** 2 / np.abs(y1 + y2 + ys) ** 2)
+    return np.asarray(np.minimum(1.0, np.abs(y1 + y2) ** 2 / np.abs(y1 + y2 + ys) ** 2), dtype=float)
 
 
 def bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray) -> np.ndarray:
@@ -46,10 +47,12 @@ def bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray)
     a, b = asm.leaves
     c = asm.connection
     m1, m2, fc1, fc2 = a.m, b.m, a.fc, b.fc
-    if c.type in ("none", "double_studs") or (c.type == "points" and c.spacing is None):
+    pitch = asm.pitch
+    if c.type in ("none", "double_studs") or (c.type == "points" and pitch <= 0):
         return np.zeros_like(f)
+    k: float | None
     if c.channel_leaf is not None or c.type == "points":
-        grid = (c.channel_spacing * c.spacing) if c.channel_leaf is not None else c.spacing**2
+        grid = (c.channel_spacing * pitch) if c.channel_leaf is not None else pitch**2
         fg = (m1 * fc2 + m2 * fc1) / (m1 + m2)
         dr = max(0.0, 20 * np.log10(np.sqrt(grid) * fg) - 45)
         y1 = np.full(f.shape, 1 / (8 * np.sqrt(a.stiffness * m1)), complex)
@@ -66,7 +69,7 @@ def bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray)
             # grid (Sharp's point bridge, compliance 1): the share q of rigid crossings adds q (1 - comp).
             comp = comp + c.channel_shorted * (1.0 - comp)
     else:
-        spacing = asm.height / 2 if c.type == "staggered_studs" else c.spacing
+        spacing = asm.height / 2 if c.type == "staggered_studs" else pitch
         fcl = ((m1 * np.sqrt(fc2) + m2 * np.sqrt(fc1)) / (m1 + m2)) ** 2
         dr = max(0.0, 10 * np.log10(spacing * fcl) - 23)
         comp = _compliance(_line_mobility(f, a), _line_mobility(f, b), f, c.stiffness)
@@ -75,7 +78,8 @@ def bridge_tau(asm: Assembly, f: np.ndarray, tau_m: np.ndarray, dip: np.ndarray)
     fcb = min(fc1, fc2)
     x = np.clip(np.log2(f / (fcb / 2)), 0.0, 1.0) if c.type != "staggered_studs" else 0.0
     tl_b = -10 * np.log10(tau_m) + dr * (1 - x) - dip
-    return 10 ** (-tl_b / 10) * comp * damping_factor(a, f) * damping_factor(b, f)
+    out: np.ndarray = 10 ** (-tl_b / 10) * comp * damping_factor(a, f) * damping_factor(b, f)
+    return out
 
 
 def damping_factor(leaf: Leaf, f: np.ndarray) -> np.ndarray:
@@ -91,7 +95,8 @@ def damping_factor(leaf: Leaf, f: np.ndarray) -> np.ndarray:
     factor is symmetric in the leaves, as reciprocity requires; a leaf less damped than the reference
     is not penalised (the reference data already include it).
     """
-    return np.minimum(1.0, ETA_REF / leaf.eta(f))
+    out: np.ndarray = np.minimum(1.0, ETA_REF / leaf.eta(f))
+    return out
 
 
 #: Loss factor of the screw-fixed gypsum board that Sharp's bridge terms were checked against (the

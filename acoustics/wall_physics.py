@@ -149,7 +149,8 @@ def single_leaf_tl(
 
     def above(ff: np.ndarray, ee: np.ndarray) -> np.ndarray:
         tl = mass_law(ff, m, incidence="normal", c0=c0, rho0=rho0) + 10 * np.log10(2 * ee * ff / (np.pi * fc))
-        return tl - 20 * np.log10(radiation_factor_above_fc(ff, fc)) if radiation else tl
+        out = tl - 20 * np.log10(radiation_factor_above_fc(ff, fc)) if radiation else tl
+        return np.asarray(out, dtype=float)
 
     tl = np.where(f <= fc / 2, lo, np.minimum(above(f, eta), lo))
     mid = (f > fc / 2) & (f < fc)
@@ -212,11 +213,11 @@ def cavity_absorption(
     bare = np.interp(np.log10(f), np.log10(_BARE_ALPHA[0]), _BARE_ALPHA[1])
     t = fill_thickness
     if t <= 0:
-        return bare
+        return np.asarray(bare, dtype=float)
     kc, zeta, _ = ap.delany_bazley(f, flow_resistivity, rho0=rho0, c0=c0)
     z = -1j * zeta / np.tan(kc * t)
     alpha = 1 - np.abs((z - 1) / (z + 1)) ** 2
-    return np.maximum(bare, alpha)
+    return np.asarray(np.maximum(bare, alpha), dtype=float)
 
 
 def cavity_path_tl(
@@ -266,7 +267,7 @@ def cavity_path_tl(
     # Above f0 never below the floor: at f0 Sharp's middle branch lies 5.5 dB under TL_M (the field-incidence
     # correction counted in both leaves), which would make a step; the branches meet just above f0.
     low = tl_m if floor is None else np.minimum(tl_m, np.asarray(floor, float))
-    return np.where(f <= f0, tl_m, np.maximum(low, -10 * np.log10(tau)))
+    return np.asarray(np.where(f <= f0, tl_m, np.maximum(low, -10 * np.log10(tau))), dtype=float)
 
 
 #: Angles for the diffuse-field average of the lumped resonance model, rad (field incidence, 0-78 deg).
@@ -285,7 +286,7 @@ def cavity_loss_factor(f: Any, depth: float, alpha: Any, *, c0: float = C0) -> n
     factor, eta = 2.2 / (f T)) = alpha / (2 k d). Derived; the same alpha limits the cavity path.
     """
     f = np.asarray(f, float)
-    return np.asarray(alpha, float) * c0 / (4 * np.pi * f * depth)
+    return np.asarray(np.asarray(alpha, float) * c0 / (4 * np.pi * f * depth), dtype=float)
 
 
 def _layer_matrix(kc: Any, zc: Any, kx: Any, h: float) -> tuple[Any, Any, Any, Any]:
@@ -390,4 +391,4 @@ def resonance_factor(
         tau = tau.mean(-2)
         tau_m = tau_m[..., 0, :]
     wt = sin * cos
-    return (tau * wt).sum(-1) / (tau_m * wt).sum(-1)
+    return np.asarray((tau * wt).sum(-1) / (tau_m * wt).sum(-1), dtype=float)

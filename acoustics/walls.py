@@ -65,7 +65,7 @@ from typing import Any
 import numpy as np
 
 from . import apertures as ap
-from .assembly import Assembly, Connection
+from .assembly import Assembly
 from .bands import sub_band_frequencies
 from .constants import C0, RHO0
 from .structural import bridge_tau
@@ -95,16 +95,19 @@ HF_LIMIT = 22.0
 PARTITIONING = ("wood_stud", "steel_stud", "staggered_studs", "double_studs", "furring")
 
 
-def _spring_per_area(c: Connection) -> float:
+def _spring_per_area(asm: Assembly) -> float:
+    c, pitch = asm.connection, asm.pitch
+    if pitch <= 0:
+        return 0.0
     if c.channel_leaf is not None:
-        return c.channel_stiffness / (c.channel_spacing * c.spacing)
+        return c.channel_stiffness / (c.channel_spacing * pitch)
     if c.stiffness is None or c.type in ("none", "double_studs", "staggered_studs"):
         return 0.0
-    return c.stiffness / (c.spacing if c.type != "points" else c.spacing**2)
+    return c.stiffness / (pitch if c.type != "points" else pitch**2)
 
 
 def _depth(asm: Assembly) -> float:
-    return asm.cavity.depth + (CHANNEL_DEPTH if asm.connection.channel_leaf is not None else 0.0)
+    return asm.gap.depth + (CHANNEL_DEPTH if asm.connection.channel_leaf is not None else 0.0)
 
 
 def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) -> dict[str, Any]:
@@ -123,9 +126,9 @@ def _paths(asm: Assembly, f: np.ndarray, extra: tuple[Any, Any] = (0.0, 0.0)) ->
         return out
     a, b = asm.leaves
     d = _depth(asm)
-    cav = asm.cavity
+    cav = asm.gap
     f0 = resonance_frequency(
-        a.m, b.m, d, fill_thickness=cav.absorber_thickness, spring_per_area=_spring_per_area(asm.connection)
+        a.m, b.m, d, fill_thickness=cav.absorber_thickness, spring_per_area=_spring_per_area(asm)
     )
     # The cavity path switches branch at the air resonance: the studs' own springs (in f0 above) act on the
     # structural path, and switching the cavity path at a spring-raised f0 left an 8-10 dB step between
@@ -230,7 +233,7 @@ def predict(spec: dict[str, Any] | Assembly) -> Prediction:
             flags.append("f0_in_rating_range")
         if p["f0"] >= p["f_l"]:
             flags.append("f0_above_f_l")
-        if asm.cavity.absorber_thickness == 0:
+        if asm.gap.absorber_thickness == 0:
             flags.append("cavity_empty")
     bridge = _band(p["bridge"])
     return Prediction(
