@@ -38,7 +38,6 @@ __all__ = [
 ]
 
 from .assembly import CONNECTION_TYPES, Assembly, Cavity, Connection, Leaf, WallSpecError
-from .audit import Audit, audit
 from .bands import averaging_frequencies
 from .defects import (
     back_to_back_boxes,
@@ -49,6 +48,7 @@ from .defects import (
     one_face_gap_from_lab,
     rigid_bridge,
 )
+from .doors import DoorSet, door_leak
 from .field import (
     apparent_r,
     apparent_tl,
@@ -66,21 +66,26 @@ from .field import (
     sabine_absorption,
     standardized_level_difference,
 )
+from .leak_audit import Audit, audit
 from .leaks import (
     FLAG_TEXT,
     Leak,
     added_area,
+    annular_gap,
     band_average,
     crack,
     filled_gap,
     hole,
     open_area,
     ring_gap,
+    series_slit,
     skin_gap,
     slit,
 )
 from .materials import MATERIALS, Material, bending_stiffness, critical_frequency, get_material
 from .ratings import rating_weights, round_half_up
+from .wall_audit import WallAudit, audit_wall
+from .wall_model import WallModel, wall_model
 from .wall_physics import (
     cavity_absorption,
     cavity_loss_factor,
@@ -122,6 +127,14 @@ __all__ += [
     "slit",
     "Audit",
     "audit",
+    "WallAudit",
+    "audit_wall",
+    "WallModel",
+    "wall_model",
+    "DoorSet",
+    "door_leak",
+    "annular_gap",
+    "series_slit",
     "rating_weights",
     "round_half_up",
     "averaging_frequencies",

@@ -1,4 +1,9 @@
-"""Leak audit: what each recorded finding costs a wall's rating, and what to fix first.
+"""Leak audit on a wall curve plus added areas: what each finding costs, and what to fix first.
+
+This is the first audit of the engine, kept for callers that pass a TL curve and a list of
+:class:`~acoustics.leaks.Leak` (every finding an independent added area). The whole-wall model, where
+findings in opposite faces are joined through the cavity, is :func:`acoustics.audit_wall`. The
+module was ``acoustics/audit.py``; it was renamed so that ``acoustics.audit`` is always the function.
 
 Every finding is a :class:`~acoustics.leaks.Leak` (an added transmission area
 per band, m^2). The as-found wall transmits
