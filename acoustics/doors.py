@@ -24,8 +24,8 @@ References
 ----------
 .. [1] Hongisto, V. (2000) "Sound insulation of doors - Part 1: prediction models for structural and
    leak transmission", J. Sound Vib. 230(1), 133-148.
-.. [2] Hongisto, V., Lindgren, M. & Keranen, J. (2000) "Sound insulation of doors - Part 2: comparison
-   between measurement results and predictions", J. Sound Vib. 230(1), 149-170.
+.. [2] Hongisto, V. et al. (2000) "Sound insulation of doors - Part 2: comparison between measurement
+   results and predictions", J. Sound Vib. 230(1) (co-authors and pages from memory; abstract only).
 .. [3] Hopkins, C. (2007) *Sound Insulation*, Eqs. 4.99-4.100 (Gomperts' slit).
 """
 

@@ -168,7 +168,7 @@ def test_audit_json_and_version():
         [{"id": "f1", "kind": "hole", "face": "a", "diameter": 0.05}],
     )
     d = json.loads(json.dumps(a.to_dict()))
-    assert d["engine_version"].endswith(ac.wall_model.__module__ and "wall-model/1")
+    assert d["engine_version"].endswith("wall-model/1")
     assert d["findings"][0]["id"] == "f1" and d["findings"][0]["path"].startswith("one face")
     assert d["order"] == ["f1"] and d["after"] == [d["designed"]]
 
