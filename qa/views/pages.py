@@ -13,9 +13,9 @@ from ..access import can, job_for
 from ..audit import audit_summary, audits_for_walls
 from ..audit.presentation import job_overview, wall_overview
 from ..cautions import GENERAL_CAUTIONS, cautions_for
-from ..choices import OPEN_STATUSES, FindingStatus
-from ..models import Finding, Member, Photo, SealPoint, Wall
+from ..choices import OPEN_STATUSES
 from ..login_throttle import LoginThrottleMixin
+from ..models import Finding, Member, Photo, SealPoint, Wall
 
 OPEN = OPEN_STATUSES
 
