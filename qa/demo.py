@@ -15,6 +15,7 @@ from django.contrib.auth import get_user_model
 from django.db import transaction
 from PIL import Image, ImageDraw, ImageFilter
 
+from . import actions
 from .audit import resolve_wall_type_curve
 from .choices import FindingStatus, PhotoPurpose, Role, SealStatus
 from .models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
@@ -217,15 +218,9 @@ def demo_photo(seed: int, label: str, when: datetime) -> bytes:
 
 
 def _store_photo(job, wall, finding, user, purpose, data: bytes) -> Photo:
-    return Photo.objects.store(
-        job=job,
-        wall=wall,
-        finding=finding,
-        user=user,
-        purpose=purpose,
-        data=data,
-        event={"device_id": "demo-phone-1"},
-    )
+    member = Member.objects.select_related("job", "user").get(job=job, user=user)
+    actor = actions.Actor(member, device_id="demo-phone-1")
+    return actions.store_photo(actor, data, wall=wall, finding=finding, purpose=purpose)
 
 
 def _point(wall: Wall, fragment: str) -> SealPoint | None:

@@ -9,19 +9,13 @@ uses them must call the invalidate functions itself.
 
 from __future__ import annotations
 
-from django.db import transaction
 from django.db.models.signals import post_delete, post_init, post_save
 from django.dispatch import receiver
 
 from .audit import cache
 from .models import Finding, Opening, Wall, WallType
 
-
-def _later(fn, *args) -> None:
-    # Invalidate now (readers inside the transaction see the change) and again after commit, so a
-    # reader in another process that refilled the cache between the two sees a fresh stamp.
-    fn(*args)
-    transaction.on_commit(lambda: fn(*args))
+_later = cache.invalidate_later
 
 
 @receiver(post_init, sender=Finding)

@@ -7,6 +7,7 @@ from django.http import Http404
 from rest_framework import exceptions
 from rest_framework.views import exception_handler as drf_handler
 
+from ..actions import Reject, Stale
 from ..models.findings import TransitionError
 from ..photos import PhotoError
 
@@ -18,8 +19,17 @@ def _field_error(exc: ValueError) -> dict:
     return {field: [rule]} if rule else {"non_field_errors": [text]}
 
 
+class Conflict409(exceptions.ValidationError):
+    status_code = 409
+
+
 def exception_handler(exc, context):
-    if isinstance(exc, (TransitionError, PhotoError)):
+    if isinstance(exc, Stale):
+        exc = Conflict409({"version": [f"is stale: the finding is now at version {exc.obj.version}"]})
+    elif isinstance(exc, Reject):
+        # A lifecycle step the status does not allow is a conflict with the object's state.
+        exc = (Conflict409 if set(exc.errors) == {"status"} else exceptions.ValidationError)(exc.errors)
+    elif isinstance(exc, (TransitionError, PhotoError)):
         exc = exceptions.ValidationError(_field_error(exc))
     elif isinstance(exc, DjangoPermissionDenied):
         exc = exceptions.PermissionDenied(str(exc) or None)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import uuid
+
 from django.db import IntegrityError, transaction
 from django.http import FileResponse, Http404
 from django.views.decorators.http import require_GET
@@ -10,12 +12,13 @@ from rest_framework.exceptions import ValidationError
 from rest_framework.parsers import FormParser, MultiPartParser
 from rest_framework.response import Response
 
+from .. import actions
 from ..access import membership, require
-from ..choices import PhotoPurpose, Role
+from ..choices import PhotoPurpose
 from ..models import Photo
 from . import serializers as s
 from .filters import apply_filters
-from .views import JobScopedMixin, _is_uuid
+from .views import JobScopedMixin
 
 
 class PhotoViewSet(
@@ -42,7 +45,7 @@ class PhotoViewSet(
         )
 
     def create(self, request, *args, **kwargs):
-        photo_id = request.data.get("id")
+        photo_id = request.data.get("id") if hasattr(request.data, "get") else None
         if photo_id and _is_uuid(photo_id):
             existing = Photo.objects.filter(pk=photo_id).first()
             if existing is not None:
@@ -52,21 +55,13 @@ class PhotoViewSet(
         serializer = self.get_serializer(data=request.data)
         serializer.is_valid(raise_exception=True)
         data = serializer.validated_data
-        finding = data.get("finding")
-        purpose = data.get("purpose", PhotoPurpose.DEFECT)
-        if self.member.role == Role.CREW:
-            if finding is None:
-                raise ValidationError({"finding": ["crew photos show the fix of a finding"]})
-            require(self.member, "fix", trade=finding.trade)
-            purpose = PhotoPurpose.FIX
         try:
-            photo = Photo.objects.store(
-                job=self.job,
+            photo = actions.store_photo(
+                self.actor(),
+                data["image"].read(),
                 wall=data["wall"],
-                finding=finding,
-                user=request.user,
-                purpose=purpose,
-                data=data["image"].read(),
+                finding=data.get("finding"),
+                purpose=data.get("purpose", PhotoPurpose.DEFECT),
                 photo_id=data.get("id"),
                 captured_at=data.get("captured_at"),
                 caption=data.get("caption", ""),
@@ -83,6 +78,14 @@ class PhotoViewSet(
         photo.removed = True
         photo.save(update_fields=["removed"])
         self.record("photo.removed", photo)
+
+
+def _is_uuid(value) -> bool:
+    try:
+        uuid.UUID(str(value))
+    except ValueError:
+        return False
+    return True
 
 
 @require_GET

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from contextlib import contextmanager
+
 from django.db import IntegrityError, transaction
 from django.db.models import Count, Prefetch, Q
 from rest_framework import mixins, status, viewsets
@@ -9,11 +11,12 @@ from rest_framework.decorators import action
 from rest_framework.exceptions import NotFound, ValidationError
 from rest_framework.response import Response
 
+from .. import actions
 from ..access import membership, require
+from ..actions.parse import parse_version
 from ..choices import FindingStatus, SealStatus
 from ..converters import ID_REGEX
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
-from ..models.findings import TransitionError
 from . import serializers as s
 from .filters import apply_filters
 
@@ -45,6 +48,9 @@ class JobScopedMixin:
 
     def record(self, verb: str, target, data: dict | None = None) -> None:
         Event.record(self.job, self.request.user, verb, target, data)
+
+    def actor(self) -> actions.Actor:
+        return actions.Actor(self.member)
 
 
 class JobViewSet(viewsets.ReadOnlyModelViewSet):
@@ -267,19 +273,19 @@ class SealPointViewSet(
 
     @transaction.atomic
     def perform_update(self, serializer):
-        from django.utils import timezone
-
-        point = serializer.instance
-        extra = {"version": point.version + 1}
-        new_status = serializer.validated_data.get("status")
-        if new_status and new_status != point.status:
-            extra.update(checked_by=self.request.user, checked_at=timezone.now())
-        old_status = point.status
-        point = serializer.save(**extra)
-        if new_status and new_status != old_status:
-            self.record("sealpoint.checked", point, {"from": old_status, "to": new_status})
-        else:
-            self.record("sealpoint.changed", point, {"fields": sorted(serializer.validated_data)})
+        point = SealPoint.objects.select_for_update().get(pk=serializer.instance.pk)
+        data = dict(serializer.validated_data)
+        status_ = data.pop("status", None)
+        ticked = status_ is not None and status_ != point.status
+        if ticked:
+            actions.tick_seal_point(self.actor(), point, status_)
+        if data or not ticked:
+            for name, value in data.items():
+                setattr(point, name, value)
+            point.version += 1
+            point.save()
+            self.record("sealpoint.changed", point, {"fields": sorted(data), "version": point.version})
+        serializer.instance = point
 
     @transaction.atomic
     def perform_destroy(self, point):
@@ -331,75 +337,58 @@ class FindingViewSet(
         )
 
     def create(self, request, *args, **kwargs):
-        client_id = request.data.get("client_id") if hasattr(request.data, "get") else None
-        replay = self._replayed(client_id)
-        if replay is not None:
-            return replay
-        try:
-            return super().create(request, *args, **kwargs)
-        except IntegrityError:
-            # The same client_id arrived twice at once; the other request stored it first.
-            replay = self._replayed(client_id)
-            if replay is None:
-                raise
-            return replay
-
-    def _replayed(self, client_id) -> Response | None:
-        if not client_id or not _is_uuid(client_id):
-            return None
-        existing = Finding.objects.filter(client_id=str(client_id)).first()
+        serializer = self.get_serializer(data=request.data)
+        serializer.is_valid(raise_exception=True)
+        actor = self.actor()
+        existing = actions.findings.existing_finding(actor, serializer.validated_data.get("client_id"))
         if existing is None:
-            return None
-        if existing.job_id != self.job.id:
-            raise ValidationError({"client_id": ["is already used"]})
+            try:
+                with transaction.atomic():
+                    finding = actions.create_finding(actor, serializer.validated_data)
+            except IntegrityError:
+                # The same client_id arrived twice at once; the other request stored it first.
+                existing = actions.findings.existing_finding(
+                    actor, serializer.validated_data.get("client_id")
+                )
+                if existing is None:
+                    raise
+            else:
+                return Response(self.get_serializer(finding).data, status=status.HTTP_201_CREATED)
         return Response(self.get_serializer(existing).data, status=status.HTTP_200_OK)
-
-    @transaction.atomic
-    def perform_create(self, serializer):
-        finding = serializer.save(job=self.job, created_by=self.request.user)
-        point = finding.seal_point
-        if point is not None and point.status != SealStatus.DEFECT:
-            point.status, point.version = SealStatus.DEFECT, point.version + 1
-            point.save(update_fields=["status", "version"])
-        self.record(
-            "finding.created",
-            finding,
-            {"wall": finding.wall.tag, "kind": finding.kind, "trade": finding.trade},
-        )
 
     def perform_update(self, serializer):
         seen = self.request.data.get("version") if hasattr(self.request.data, "get") else None
+        base = None
+        if seen is not None:
+            try:
+                base = parse_version(seen, "version")
+            except actions.Reject as exc:
+                raise ValidationError(exc.errors) from None
         with transaction.atomic():
             finding = Finding.objects.select_for_update().get(pk=serializer.instance.pk)
-            if seen is not None and str(seen) != str(finding.version):
-                raise _Stale(finding)
-            serializer.instance = finding
-            finding = serializer.save(version=finding.version + 1)
-            self.record(
-                "finding.edited",
-                finding,
-                {"fields": sorted(serializer.validated_data), "version": finding.version},
-            )
+            with api_names():
+                serializer.instance = actions.edit_finding(
+                    self.actor(), finding, dict(serializer.validated_data), base
+                )
 
     @transaction.atomic
     def perform_destroy(self, finding):
-        finding.remove(self.request.user)
+        finding = Finding.objects.select_for_update().get(pk=finding.pk)
+        actions.remove_finding(self.actor(), finding)
 
     def _step(self, request, name: str):
         body = s.NoteSerializer(data=request.data)
         body.is_valid(raise_exception=True)
         with transaction.atomic():
             finding = Finding.objects.select_for_update().get(pk=self.get_object().pk)
-            require(self.member, self.STEP_RIGHTS[name], trade=finding.trade)
-            seen = body.validated_data.get("version")
-            if seen is not None and seen != finding.version:
-                raise _Stale(finding)
-            try:
-                {"fix": finding.mark_fixed, "verify": finding.verify, "reopen": finding.reopen}[name](
-                    request.user, body.validated_data["note"]
+            with api_names():
+                actions.finding_step(
+                    self.actor(),
+                    finding,
+                    name,
+                    body.validated_data["note"],
+                    body.validated_data.get("version"),
                 )
-            except TransitionError as exc:
-                return Response({"status": [str(exc).partition(": ")[2]]}, status=status.HTTP_409_CONFLICT)
         # The action's serializer_class is the request body; the answer is the whole finding.
         return Response(s.FindingSerializer(finding, context=self.get_serializer_context()).data)
 
@@ -415,25 +404,19 @@ class FindingViewSet(
 
     @action(detail=True, methods=["post"], serializer_class=s.NoteSerializer)
     def reopen(self, request, *args, **kwargs):
-        """Reopen a fixed or verified finding (inspector)."""
+        """Reopen a fixed or verified finding (inspector; say why in ``note``)."""
         return self._step(request, "reopen")
 
 
-class _Stale(ValidationError):
-    status_code = status.HTTP_409_CONFLICT
-
-    def __init__(self, finding):
-        super().__init__({"version": [f"is stale: the finding is now at version {finding.version}"]})
-
-
-def _is_uuid(value) -> bool:
-    import uuid
-
+@contextmanager
+def api_names():
+    """The API calls the version a client saw ``version``; the write path calls it ``base_version``."""
     try:
-        uuid.UUID(str(value))
-    except ValueError:
-        return False
-    return True
+        yield
+    except actions.Reject as exc:
+        if "base_version" in exc.errors:
+            exc.errors["version"] = exc.errors.pop("base_version")
+        raise
 
 
 class EventViewSet(JobScopedMixin, mixins.ListModelMixin, viewsets.GenericViewSet):

@@ -9,8 +9,12 @@ the old entry unreachable. Cold walls are computed by :func:`qa.audit.summary.co
 from __future__ import annotations
 
 import uuid
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from contextvars import ContextVar
 
 from django.core.cache import cache
+from django.db import transaction
 
 #: Bump when the adapter or the engine changes the numbers; old cache entries are then ignored.
 ENGINE_VERSION = "a1"
@@ -50,3 +54,36 @@ def audit_keys(walls: list) -> dict[int, str]:
         f"{stamps.get(_STAMP_T.format(w.wall_type_id), '-')}"
         for w in walls
     }
+
+
+#: Stamps to replace once when a :func:`deferred_invalidation` block ends: {(function, id)}.
+_DEFERRED: ContextVar[set | None] = ContextVar("sealwalk_deferred_invalidation", default=None)
+
+
+def _now_and_after_commit(fn: Callable[[int], None], pk: int) -> None:
+    # Invalidate now (readers inside the transaction see the change) and again after commit, so a
+    # reader in another process that refilled the cache between the two sees a fresh stamp.
+    fn(pk)
+    transaction.on_commit(lambda: fn(pk))
+
+
+def invalidate_later(fn: Callable[[int], None], pk: int) -> None:
+    """Invalidate through ``fn`` now and after commit — or once at the end of a deferred block."""
+    deferred = _DEFERRED.get()
+    if deferred is None:
+        _now_and_after_commit(fn, pk)
+    else:
+        deferred.add((fn, pk))
+
+
+@contextmanager
+def deferred_invalidation() -> Iterator[None]:
+    """Collect the invalidations of a block (a sync batch) and do each one once when it ends."""
+    deferred: set = set()
+    token = _DEFERRED.set(deferred)
+    try:
+        yield
+    finally:
+        _DEFERRED.reset(token)
+    for fn, pk in deferred:
+        _now_and_after_commit(fn, pk)

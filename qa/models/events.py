@@ -1,9 +1,16 @@
 from __future__ import annotations
 
+from collections.abc import Iterator
+from contextlib import contextmanager
+from contextvars import ContextVar
+
 from django.conf import settings
 from django.db import models
 
 from .jobs import Job
+
+#: Events held back by :func:`buffered_events`, written in one statement when the block ends.
+_BUFFER: ContextVar[list | None] = ContextVar("sealwalk_event_buffer", default=None)
 
 
 class AppendOnlyError(Exception):
@@ -52,7 +59,7 @@ class Event(models.Model):
     def record(
         cls, job, actor, verb: str, target, data: dict | None = None, *, device_at=None, device_id: str = ""
     ) -> Event:
-        return cls.objects.create(
+        event = cls(
             job=job,
             actor=actor if getattr(actor, "is_authenticated", False) else None,
             verb=verb,
@@ -62,3 +69,25 @@ class Event(models.Model):
             device_at=device_at,
             device_id=device_id[:64],
         )
+        buffer = _BUFFER.get()
+        if buffer is None:
+            event.save()
+        else:
+            buffer.append(event)
+        return event
+
+
+@contextmanager
+def buffered_events() -> Iterator[list[Event]]:
+    """Hold back every :meth:`Event.record` in the block and write them in one statement at its end.
+
+    The caller may drop events of a part that was rolled back by truncating the yielded list. Use it
+    inside a transaction, so the events commit with the changes they describe.
+    """
+    buffer: list[Event] = []
+    token = _BUFFER.set(buffer)
+    try:
+        yield buffer
+    finally:
+        _BUFFER.reset(token)
+    Event.objects.bulk_create(buffer)

@@ -20,65 +20,6 @@ def thumb_path(photo: Photo, filename: str) -> str:
     return f"photos/{photo.job_id}/{photo.id}-thumb.jpg"
 
 
-class PhotoManager(models.Manager):
-    def store(
-        self,
-        *,
-        job,
-        wall,
-        finding,
-        user,
-        purpose,
-        data: bytes,
-        photo_id=None,
-        captured_at=None,
-        caption: str = "",
-        event: dict | None = None,
-    ) -> Photo:
-        """Clean an uploaded image (qa.photos.clean_photo), store it and its thumbnail, record an Event.
-
-        Raises qa.photos.PhotoError for a file that is not an acceptable photo, and IntegrityError
-        when ``photo_id`` is already stored (a replayed upload racing its twin).
-        """
-        from django.core.files.base import ContentFile
-        from django.db import transaction
-
-        from ..photos import clean_photo
-        from .events import Event
-
-        clean = clean_photo(data)
-        photo = self.model(
-            job=job,
-            wall=wall,
-            finding=finding,
-            purpose=purpose,
-            caption=caption,
-            captured_at=captured_at or clean.captured_at,
-            width=clean.width,
-            height=clean.height,
-            bytes=len(clean.image),
-            sha256=clean.sha256,
-            received_sha256=clean.received_sha256,
-            original_format=clean.original_format,
-            uploaded_by=user,
-        )
-        if photo_id:
-            photo.id = photo_id
-        photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-        photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-        with transaction.atomic():
-            photo.save(force_insert=True)
-            Event.record(
-                job,
-                user,
-                "photo.added",
-                photo,
-                {"finding": finding.id if finding else None, "purpose": purpose, "sha256": photo.sha256},
-                **(event or {}),
-            )
-        return photo
-
-
 class Photo(models.Model):
     """A photo of a defect, a fix or a check.
 
@@ -107,8 +48,6 @@ class Photo(models.Model):
     uploaded_at = models.DateTimeField(auto_now_add=True)
     caption = models.CharField(max_length=200, blank=True)
     removed = models.BooleanField(default=False)
-
-    objects = PhotoManager()
 
     class Meta:
         ordering = ["uploaded_at", "id"]

@@ -10,7 +10,6 @@ from collections import OrderedDict
 
 from django.contrib import messages
 from django.contrib.auth.decorators import login_required
-from django.core.files.base import ContentFile
 from django.db import transaction
 from django.db.models import Prefetch
 from django.http import Http404
@@ -19,18 +18,16 @@ from django.urls import reverse
 from django.utils.http import url_has_allowed_host_and_scheme
 from django.views.decorators.http import require_POST
 
-from ..access import job_for, membership, require
+from .. import actions
+from ..access import job_for, membership
 from ..audit.presentation import item_caution
 from ..audit.verdicts import face_name
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES as OPEN
 from ..choices import FindingStatus, PhotoPurpose, Trade
-from ..models import Event, Finding, Photo
-from ..models.findings import TransitionError
-from ..photos import PhotoError, clean_photo
+from ..models import Finding, Photo
+from ..photos import PhotoError
 from . import feedback
-
-NOTE_MAX = 2000
 
 
 def _safe_next(request, fallback: str) -> str:
@@ -40,32 +37,6 @@ def _safe_next(request, fallback: str) -> str:
     ):
         return nxt
     return fallback
-
-
-def store_photo(job, finding, user, purpose: str, upload) -> Photo:
-    """Clean and store an uploaded photo of ``finding`` (same steps as the API photo upload)."""
-    clean = clean_photo(upload.read())
-    photo = Photo(
-        job=job,
-        wall_id=finding.wall_id,
-        finding=finding,
-        purpose=purpose,
-        captured_at=clean.captured_at,
-        bytes=len(clean.image),
-        width=clean.width,
-        height=clean.height,
-        sha256=clean.sha256,
-        received_sha256=clean.received_sha256,
-        original_format=clean.original_format,
-        uploaded_by=user,
-    )
-    photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-    photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-    photo.save()
-    Event.record(
-        job, user, "photo.added", photo, {"finding": finding.pk, "purpose": purpose, "sha256": photo.sha256}
-    )
-    return photo
 
 
 def _photos_prefetch():
@@ -155,21 +126,26 @@ def check_page(request, job_pk):
     )
 
 
-def _finding_for_step(request, job_pk, finding_pk, right: str):
+def _step(request, job_pk, finding_pk, step: str, purpose: str) -> Finding:
+    """One lifecycle step from a page form, with its optional photo, through :mod:`qa.actions`."""
     member = membership(request.user, job_pk)
     try:
         finding = Finding.objects.select_for_update().get(pk=finding_pk, job_id=job_pk, removed=False)
     except (Finding.DoesNotExist, ValueError):
         raise Http404("No such finding") from None
-    require(member, right, trade=finding.trade)
-    return member, finding
+    actor = actions.Actor(member)
+    actions.finding_step(actor, finding, step, request.POST.get("note") or "")
+    if request.FILES.get("photo"):
+        actions.store_photo(
+            actor, request.FILES["photo"].read(), wall=finding.wall, finding=finding, purpose=purpose
+        )
+    return finding
 
 
-def _note(request) -> str:
-    note = (request.POST.get("note") or "").strip()
-    if len(note) > NOTE_MAX:
-        raise ValueError(f"note: at most {NOTE_MAX} characters")
-    return note
+def _message(exc: Exception) -> str:
+    if isinstance(exc, actions.Reject):
+        return " ".join(f"{field}: {'; '.join(rules)}" for field, rules in exc.errors.items())
+    return str(exc)
 
 
 @login_required
@@ -178,12 +154,8 @@ def mark_fixed(request, job_pk, finding_pk):
     """Crew of the finding's trade (or the inspector) reports it fixed, with a photo and a note."""
     try:
         with transaction.atomic():
-            member, finding = _finding_for_step(request, job_pk, finding_pk, "fix")
-            note = _note(request)
-            finding.mark_fixed(request.user, note)
-            if request.FILES.get("photo"):
-                store_photo(member.job, finding, request.user, PhotoPurpose.FIX, request.FILES["photo"])
-    except (ValueError, PhotoError) as exc:  # TransitionError is a ValueError
+            finding = _step(request, job_pk, finding_pk, "fix", PhotoPurpose.FIX)
+    except (actions.Reject, PhotoError) as exc:
         messages.error(request, _message(exc), extra_tags=feedback.tag(finding_pk))
     else:
         messages.success(
@@ -205,14 +177,8 @@ def check_finding(request, job_pk, finding_pk):
         return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
     try:
         with transaction.atomic():
-            member, finding = _finding_for_step(request, job_pk, finding_pk, "verify")
-            note = _note(request)
-            if action == "reopen" and not note:
-                raise ValueError("note: say why the finding is reopened")
-            (finding.verify if action == "verify" else finding.reopen)(request.user, note)
-            if request.FILES.get("photo"):
-                store_photo(member.job, finding, request.user, PhotoPurpose.VERIFY, request.FILES["photo"])
-    except (ValueError, PhotoError) as exc:
+            finding = _step(request, job_pk, finding_pk, action, PhotoPurpose.VERIFY)
+    except (actions.Reject, PhotoError) as exc:
         messages.error(request, _message(exc), extra_tags=feedback.tag(finding_pk))
     else:
         done = "verified" if action == "verify" else "reopened"
@@ -222,9 +188,3 @@ def check_finding(request, job_pk, finding_pk):
             extra_tags=feedback.tag(finding_pk),
         )
     return redirect(_safe_next(request, reverse("qa:check", args=[job_pk])))
-
-
-def _message(exc: Exception) -> str:
-    if isinstance(exc, TransitionError):
-        return str(exc).partition(": ")[2] or str(exc)
-    return str(exc)

@@ -3,8 +3,7 @@
 The device names the photo (its UUID), the total size and the SHA-256 of the bytes it will send.
 Chunks must arrive at the server's current offset, so a cut-off upload asks for the offset and
 carries on from there. Finishing checks size and hash, then stores the photo the same way the
-photo API does (:func:`qa.photos.clean_photo`: a clean, metadata-free JPEG from the phone is kept
-byte for byte).
+photo API does (:func:`qa.actions.store_photo`).
 """
 
 from __future__ import annotations
@@ -14,15 +13,14 @@ import re
 import uuid
 
 from django.conf import settings
-from django.core.files.base import ContentFile
 from django.db import transaction
 from django.utils.dateparse import parse_datetime
 
+from .. import actions
 from ..access import require
+from ..actions import Actor, Reject
 from ..choices import PhotoPurpose, Role
-from ..models import Event, Finding, Member, Photo, PhotoUpload, Wall
-from ..photos import clean_photo
-from .sync import Reject
+from ..models import Finding, Member, Photo, PhotoUpload, Wall
 
 SHA256 = re.compile(r"^[0-9a-f]{64}$")
 
@@ -163,13 +161,30 @@ def append_chunk(member: Member, photo_id, offset: int, chunk: bytes) -> dict:
     return state(upload)
 
 
+def _finished(member: Member, photo_id) -> Photo | None:
+    return Photo.objects.filter(pk=_uuid(photo_id, "id"), job=member.job).first()
+
+
+def _upload_or_finished(member: Member, photo_id) -> PhotoUpload | Photo:
+    """The locked upload — or, when a finish racing this one stored it meanwhile, the stored photo."""
+    try:
+        return _upload(member, photo_id, lock=True)
+    except Reject:
+        photo = _finished(member, photo_id)
+        if photo is None:
+            raise
+        return photo
+
+
 def finish_upload(member: Member, photo_id) -> tuple[Photo, bool]:
     """Check size and hash, store the photo; return it and whether it was made now."""
-    photo = Photo.objects.filter(pk=_uuid(photo_id, "id"), job=member.job).first()
+    photo = _finished(member, photo_id)
     if photo is not None:
         return photo, False
     with transaction.atomic():
-        upload = _upload(member, photo_id, lock=True)
+        upload = _upload_or_finished(member, photo_id)
+        if isinstance(upload, Photo):
+            return upload, False
         data = bytes(upload.received)
         if len(data) != upload.total_bytes:
             raise Reject({"offset": [f"the upload has {len(data)} of {upload.total_bytes} bytes"]})
@@ -183,42 +198,23 @@ def finish_upload(member: Member, photo_id) -> tuple[Photo, bool]:
     if mismatch:
         raise Reject({"sha256": ["does not match the bytes received; the upload was reset"]})
     with transaction.atomic():
-        upload = _upload(member, photo_id, lock=True)
+        upload = _upload_or_finished(member, photo_id)
+        if isinstance(upload, Photo):
+            return upload, False
         data = bytes(upload.received)
         if len(data) != upload.total_bytes or hashlib.sha256(data).hexdigest() != upload.sha256:
             raise Reject({"offset": ["the upload changed while finishing; ask for the offset and go on"]})
-        clean = clean_photo(data)
-        photo = Photo(
-            id=upload.id,
-            job=upload.job,
+        actor = Actor(member, device_id=upload.device_id)
+        photo = actions.store_photo(
+            actor,
+            data,
             wall=upload.wall,
             finding=upload.finding,
             purpose=upload.purpose,
+            photo_id=upload.id,
+            captured_at=upload.captured_at,
             caption=upload.caption,
-            captured_at=upload.captured_at or clean.captured_at,
-            bytes=len(clean.image),
-            width=clean.width,
-            height=clean.height,
-            sha256=clean.sha256,
-            received_sha256=clean.received_sha256,
-            original_format=clean.original_format,
-            uploaded_by=member.user,
-        )
-        photo.image.save("photo.jpg", ContentFile(clean.image), save=False)
-        photo.thumbnail.save("thumb.jpg", ContentFile(clean.thumbnail), save=False)
-        photo.save()
-        Event.record(
-            upload.job,
-            member.user,
-            "photo.added",
-            photo,
-            {
-                "finding": upload.finding_id,
-                "purpose": upload.purpose,
-                "sha256": photo.sha256,
-                "resumable": True,
-            },
-            device_id=upload.device_id,
+            extra={"resumable": True},
         )
         upload.delete()
     return photo, True

@@ -19,10 +19,11 @@ from rest_framework.response import Response
 from rest_framework.views import APIView
 
 from ..access import membership, require
+from ..actions import Actor, Reject
 from ..models import Conflict, Job
 from ..photos import PhotoError
 from .bundle import build_bundle
-from .sync import Reject, apply_batch, conflict_data, resolve_conflict
+from .sync import apply_batch, conflict_data, resolve
 from .uploads import OffsetMismatch, append_chunk, finish_upload, open_upload, photo_data, upload_state
 
 #: Largest chunk accepted in one request (the walk sends 256 KiB).
@@ -104,9 +105,9 @@ class ConflictResolveView(WalkView):
     def post(self, request, job_pk: int, conflict_pk: int):
         try:
             with transaction.atomic():
-                answer = resolve_conflict(
-                    self.job, self.member, conflict_pk, request.data.get("keep"), device_id=self.device_id()
-                )
+                body = request.data if isinstance(request.data, dict) else {}
+                actor = Actor(self.member, device_id=self.device_id())
+                answer = resolve(actor, conflict_pk, body.get("keep"))
         except Reject as exc:
             return _bad(exc, status.HTTP_409_CONFLICT if "conflict" in exc.errors else 400)
         return Response(answer)

@@ -30,7 +30,7 @@ def test_a_change_shows_in_the_trail_newest_first(world, api):
         ("sealpoint.checked", "insp"),
     ]
     filtered = client.get(url(world.job), {"target_type": "sealpoint", "target_id": point.id}).json()
-    assert [e["data"] for e in filtered["results"]] == [{"from": "unchecked", "to": "pass"}]
+    assert [e["data"] for e in filtered["results"]] == [{"from": "unchecked", "to": "pass", "version": 2}]
 
 
 def test_another_jobs_events_are_not_listed(world, api):

@@ -80,7 +80,7 @@ def test_inspector_records_a_slit_in_mm_stored_in_metres(world, api):
     assert point.status == "defect" and point.version == 2
     event = Event.objects.get(verb="finding.created", target_id=str(finding.pk))
     assert event.actor == world.inspector and event.job == world.job
-    assert event.data == {"wall": "2-01", "kind": "slit", "trade": "drywall"}
+    assert event.data == {"wall": "2-01", "kind": "slit", "trade": "drywall", "version": 1}
 
 
 def test_imperial_job_round_trips_inches(world, api):
@@ -396,7 +396,8 @@ def test_who_marks_fixed(world, api, role):
 )
 def test_who_verifies_and_reopens(world, api, role, step, start, after):
     finding = make_finding(world, "electrical", status=start)
-    r = as_role(world, api, role).post(url(world.job, finding.pk, step), {}, format="json")
+    body = {"note": "the bead is broken again"} if step == "reopen" else {}
+    r = as_role(world, api, role).post(url(world.job, finding.pk, step), body, format="json")
     assert r.status_code == VERIFY[role]
     finding.refresh_from_db()
     if VERIFY[role] == 200:

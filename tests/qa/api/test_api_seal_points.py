@@ -55,7 +55,8 @@ def test_ticking_a_seal_point_records_who_and_when(world, api):
     point.refresh_from_db()
     assert (point.status, point.checked_by, point.version) == ("pass", world.inspector, 2)
     assert point.checked_at is not None
-    assert Event.objects.get(verb="sealpoint.checked").data == {"from": "unchecked", "to": "pass"}
+    event = Event.objects.get(verb="sealpoint.checked")
+    assert event.data == {"from": "unchecked", "to": "pass", "version": 2}
 
 
 RULES = [
