@@ -4,7 +4,6 @@ names of the manifest storage. pytest-django still runs each test with ``DEBUG =
 
 import os
 
-os.environ.setdefault("DJANGO_ALLOW_ASYNC_UNSAFE", "true")  # Playwright's sync API shares the test thread
 # Debug is off unless asked for (qa/settings.py); the test run asks, as a developer's machine would.
 os.environ.setdefault("SEALWALK_DEBUG", "1")
 

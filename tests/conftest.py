@@ -7,13 +7,10 @@ The personas: an inspector, a crew lead of one trade (electrical), a crew lead o
 from __future__ import annotations
 
 import os
+import shutil
+from dataclasses import dataclass
 
-os.environ.setdefault("DJANGO_ALLOW_ASYNC_UNSAFE", "true")  # Playwright's sync API shares the test thread
-
-import shutil  # noqa: E402
-from dataclasses import dataclass  # noqa: E402
-
-import pytest  # noqa: E402
+import pytest
 
 PASSWORD = "correct-horse-battery-9"
 
@@ -177,7 +174,7 @@ def chromium_available() -> bool:
     return shutil.which(CHROMIUM) is not None or os.path.exists(CHROMIUM)
 
 
-@pytest.fixture(scope="session")
+@pytest.fixture(scope="module")
 def browser():
     if not chromium_available():
         if os.environ.get("CI"):
