@@ -86,7 +86,9 @@ def geometry_errors(kind: str, face: str, dims: dict, wall: Wall) -> dict[str, s
 
 class FindingQuerySet(models.QuerySet):
     def live(self) -> FindingQuerySet:
-        return self.filter(removed=False)
+        """Findings that count: not removed, on a wall that is not removed either (a removed wall's
+        findings stay in the record but no list, bundle, total or CSV counts them)."""
+        return self.filter(removed=False, wall__removed=False)
 
     def unresolved(self) -> FindingQuerySet:
         return self.live().exclude(status=FindingStatus.VERIFIED)
