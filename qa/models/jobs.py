@@ -4,6 +4,7 @@ from django.conf import settings
 from django.db import models
 
 from ..choices import RatingScheme, Role, Trade, Units
+from ..field.choices import BuildingKind
 
 
 class JobQuerySet(models.QuerySet):
@@ -29,6 +30,12 @@ class Job(models.Model):
         max_length=200,
         blank=True,
         help_text="The code or specification the targets come from, e.g. 'Project spec: STC 55 between units'.",  # noqa: E501
+    )
+    building_kind = models.CharField(
+        max_length=20,
+        choices=BuildingKind.choices,
+        default=BuildingKind.WOOD_FRAME,
+        help_text="Sets the default floors, ceilings and side walls of the field prediction.",
     )
     created_at = models.DateTimeField(auto_now_add=True)
     updated_at = models.DateTimeField(auto_now=True)
