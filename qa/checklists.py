@@ -48,7 +48,7 @@ from dataclasses import dataclass, field, replace
 
 from qa.choices import Construction, Face, GapKind, Trade
 
-__all__ = ["SealPointTemplate", "TEMPLATES", "LIGHT_FRAME", "GAP_KEYS", "template_for"]
+__all__ = ["SealPointTemplate", "TEMPLATES", "LIGHT_FRAME", "GAP_KEYS", "channel_face", "template_for"]
 
 #: Keys allowed in a template's default geometry.
 GAP_KEYS = frozenset({"width_m", "length_m", "length_fraction", "diameter_m", "depth_m", "area_m2", "count"})
@@ -91,6 +91,9 @@ class SealPointTemplate:
         True for a slit along a wall edge (perimeter), False mid-panel.
     caution : str
         Key into :data:`qa.cautions.CAUTIONS`, or ``""``.
+    channel : bool
+        True for a check of the resilient channel: it belongs on the face that carries the channel,
+        which :func:`template_for` reads from the wall type's layers (face A when unknown).
 
     Raises
     ------
@@ -109,6 +112,7 @@ class SealPointTemplate:
     gap: dict[str, float] = field(hash=False)
     at_edge: bool = False
     caution: str = ""
+    channel: bool = False
 
     def __post_init__(self) -> None:
         # Store plain strings, not enum members, so the data serialises as-is.
@@ -173,6 +177,10 @@ def _light_frame(board: float, depth: float, stud: float, insulation: str = "") 
     # FP §1.3 row 1. Width 6 mm: the 1/4 in gap left for sealant (consultant notes, board-maker
     # guide). Length 25 %: beads are usually broken in stretches (corners, bays, obstructions), not
     # missing end to end (common practice, no source); a full missing bead is length_fraction 1.0.
+    def each_face(key: str, label: str, *args, **kwargs) -> list[SealPointTemplate]:
+        # Board joints, boxes and cut-outs exist on both faces of a stud wall: one check per face.
+        return [_P(f"{key}-{f}", f"{label}, face {n}", f, *args, **kwargs) for f, n in ((A, "A"), (B, "B"))]
+
     def bottom(face: str, name: str) -> SealPointTemplate:
         return _P(
             f"bottom-perimeter-{face}", f"Bottom edge, face {name}", face, DRY,
@@ -199,7 +207,7 @@ def _light_frame(board: float, depth: float, stud: float, insulation: str = "") 
            "Flutes left open above the head track.",
            GapKind.OPEN_AREA, {"area_m2": GANG_CUTOUT, "depth_m": depth, "count": 4}, caution=FIRE),
         # FP §1.3 row 3: slots 1/4-1 in, full height; 6 mm x one storey.
-        _P("vertical-perimeter", "Wall ends and abutments", A, DRY,
+        *each_face("vertical-perimeter", "Wall ends and abutments", DRY,
            "Board held back 3-6 mm at walls, columns and mullions and sealed; no lining runs "
            "past the wall line. " + _RATED_JOINT,
            "Unsealed end joint, or exterior-wall lining continuous past the wall.",
@@ -213,18 +221,18 @@ def _light_frame(board: float, depth: float, stud: float, insulation: str = "") 
            GapKind.SLIT, {"width_m": 3 * MM, "length_fraction": 0.25, "depth_m": stud},
            at_edge=True, caution=FIRE),
         # FP §1.3 row 5: joints open 1/8-1/2 in; 3 mm x half a sheet length.
-        _P("board-joints", "Board joints", A, DRY,
+        *each_face("board-joints", "Board joints", DRY,
            "Joints taped and finished; layers offset; vertical joints on opposite faces on "
            "different studs.",
            "Untaped base-layer or open joints, often above the ceiling.",
            GapKind.SLIT, {"width_m": 3 * MM, "length_m": 1.2, "depth_m": board}),
         # FP §1.3 row 6: "1/4 in rims to fist-size holes"; a 50 mm hole.
-        _P("cut-outs", "Cut-outs and damage", A, DRY,
+        *each_face("cut-outs", "Cut-outs and damage", DRY,
            "Cut-outs tight to the item; no open holes, above the ceiling or behind tubs included.",
            "Oversized or abandoned cut-outs, holes cut by other trades.",
            GapKind.HOLE, {"diameter_m": 50 * MM, "depth_m": board}),
         # FP §1.3 row 7, §1.4; NRC CTU No. 27.
-        _P("back-box-seal", "Back-boxes sealed", A, ELEC,
+        *each_face("back-box-seal", "Back-boxes sealed", ELEC,
            "Pad or airtight box where specified, wrapped and sealed; cable entries sealed.",
            "Open knockouts or cable entries; pad missing.",
            GapKind.OPEN_AREA, {"area_m2": BOX_LEAK, "depth_m": board}, caution="energised_boxes"),
@@ -234,7 +242,7 @@ def _light_frame(board: float, depth: float, stud: float, insulation: str = "") 
            "as the spec says.",
            "Boxes back to back in one bay.",
            GapKind.BACK_TO_BACK, {"area_m2": BOX_LEAK, "depth_m": depth}, caution="energised_boxes"),
-        _P("box-cut-outs", "Box cut-outs tight", A, DRY,
+        *each_face("box-cut-outs", "Box cut-outs tight", DRY,
            "Board cut within 3 mm (1/8 in) of the box all round.",
            "Oversized cut-out around the box.",
            GapKind.OPEN_AREA, {"area_m2": GANG_CUTOUT, "depth_m": board}, caution="energised_boxes"),
@@ -320,38 +328,45 @@ _double = _light_frame(BOARD, _D_DOUBLE, 89 * MM) + [
        GapKind.BRIDGE, {"count": 1}),
 ]
 
-# FP §1.5 "resilient channel"; channel on face A. Screws into studs is the most common error
+# FP §1.5 "resilient channel"; channel on face A unless the wall type's layers put it on face B
+# (template_for moves the channel checks to that face). Screws into studs is the most common error
 # (consultant installation blog); channel between layers costs ~15-20 STC (same source).
 _rc = _light_frame(BOARD, _D_RC, 89 * MM) + [
     _P("rc-screws", "No screws into studs", A, DRY,
        "Board screwed only into the channel; screws short enough to miss the stud "
        "(1 in / 25 mm for one 5/8 in layer).",
        "Screws through the channel into studs.",
-       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}),
+       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}, channel=True),
     _P("rc-orientation", "Channel fixed and oriented", A, DRY,
        "Channel across the studs, flange down, slotted holes over studs, at most 610 mm o.c.",
        "Channel upside down, or hat furring used instead.",
-       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}),
+       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}, channel=True),
     _P("rc-direct", "Channel directly on framing", A, DRY,
        "Channel on the studs themselves, not between board layers or over shear panels.",
        "Channel sandwiched between board layers.",
-       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}, caution="rated_assembly_changes"),
+       GapKind.CHANNEL_SHORT, {"area_m2": SHEET}, caution="rated_assembly_changes", channel=True),
     # Floated board touching the floor along a quarter of the wall (common practice, no source).
     _P("rc-edges", "Floated board clear of edges", A, DRY,
        "Channel-side board gapped and sealed at floor, ceiling and walls; touches nothing rigid.",
        "Board tight to the floor or ceiling.",
-       GapKind.BRIDGE, {"length_fraction": 0.25}, at_edge=True),
+       GapKind.BRIDGE, {"length_fraction": 0.25}, at_edge=True, channel=True),
     _P("rc-fixtures", "Nothing fixed through to studs", A, GC,
        "Cabinets, brackets and grab-bar backing fixed without bypassing the channel.",
        "Cabinet or bracket bolted through to the studs.",
-       GapKind.BRIDGE, {"count": 2}),
+       GapKind.BRIDGE, {"count": 2}, channel=True),
 ]
 
 # FP §1.5 "shaft walls" (build from memory, unverified; checks common practice). Face A = room
 # side (board), face B = shaft side (1 in / 25.4 mm liner panels). Depth 2-1/2 in (64 mm) stud
 # plus one 15.9 mm face, about 80 mm (from memory, unverified).
 _LINER = 25.4 * MM
-_shaft = _light_frame(BOARD, 0.080, 64 * MM)
+_BOARD_FACE_CHECKS = ("vertical-perimeter", "board-joints", "cut-outs", "back-box-seal", "box-cut-outs")
+_shaft = [
+    p
+    for p in _light_frame(BOARD, 0.080, 64 * MM)
+    # The shaft side is liner panel in runners: no board joints, boxes or cut-outs there.
+    if not (p.face == B and p.key.startswith(_BOARD_FACE_CHECKS))
+]
 _swap(_shaft, "bottom-perimeter-a", label="Bottom edge, room side")
 _swap(_shaft, "bottom-perimeter-b", label="Liner at bottom runner",
       gap={"width_m": 6 * MM, "length_fraction": 0.25, "depth_m": _LINER},
@@ -377,8 +392,12 @@ _shaft += [
 # FP §1.5 "concrete and masonry" (NRC CTU No. 13; checks common practice, no source).
 # 8 in CMU is 194 mm actual; face shell about 32 mm (from memory, unverified).
 _D_CMU, _SHELL = 0.194, 32 * MM
+def _both(key: str, label: str, *args, **kwargs) -> list[SealPointTemplate]:
+    return [_P(f"{key}-{f}", f"{label}, face {n}", f, *args, **kwargs) for f, n in ((A, "A"), (B, "B"))]
+
+
 _masonry = [
-    _P("surface-seal", "Block faces sealed", A, GC,
+    *_both("surface-seal", "Block face sealed", GC,
        "Porous block painted or plastered where the design calls for it; board on dabs does "
        "not count as a seal.",
        "Bare block face, or a patch missed.",
@@ -416,7 +435,7 @@ _masonry = [
        "Boxes on opposite faces in different cores and offset per code or spec.",
        "Boxes back to back in one core.",
        GapKind.BACK_TO_BACK, {"area_m2": BOX_LEAK, "depth_m": _D_CMU}, caution="energised_boxes"),
-    _P("box-cut-outs", "Box cut-outs in block", A, ELEC,
+    *_both("box-cut-outs", "Box cut-outs in block", ELEC,
        "Box openings cut tight and grouted or sealed round the box.",
        "Ragged cut-out open to the core.",
        GapKind.OPEN_AREA, {"area_m2": GANG_CUTOUT, "depth_m": _SHELL}, caution="energised_boxes"),
@@ -503,13 +522,29 @@ TEMPLATES: dict[str, tuple[SealPointTemplate, ...]] = {
 }
 
 
-def template_for(construction: str) -> tuple[SealPointTemplate, ...]:
-    """Return the seal-point template for a kind of construction.
+def channel_face(layers: dict | None) -> str | None:
+    """The face that carries a resilient channel in a wall type's layers: "a", "b" or None.
+
+    ``layers["connection"]["resilient_channel"]["leaf"]`` is the leaf index (0 = face A, 1 = face B)
+    in the engine's assembly format (:class:`acoustics.Assembly`).
+    """
+    try:
+        leaf = layers["connection"]["resilient_channel"]["leaf"]
+    except (KeyError, TypeError):
+        return None
+    return {0: A, 1: B}.get(leaf)
+
+
+def template_for(construction: str, layers: dict | None = None) -> tuple[SealPointTemplate, ...]:
+    """Return the seal-point template for a kind of construction, placed on a wall type's faces.
 
     Parameters
     ----------
     construction : str
         A :class:`qa.choices.Construction` value, e.g. ``"wood_stud"``.
+    layers : dict, optional
+        The wall type's layers. When they put a resilient channel on a face, the channel checks
+        (``channel=True``) are on that face; without layers the template is returned as stored.
 
     Returns
     -------
@@ -523,9 +558,13 @@ def template_for(construction: str) -> tuple[SealPointTemplate, ...]:
     # An enum member hashes by its name, not its value, so look up by value.
     kind = getattr(construction, "value", construction)
     try:
-        return TEMPLATES[kind]
+        points = TEMPLATES[kind]
     except (KeyError, TypeError):
         known = ", ".join(TEMPLATES)
         raise ValueError(
             f"construction {construction!r} has no checklist template; known kinds: {known}"
         ) from None
+    face = channel_face(layers)
+    if face is None or not any(p.channel and p.face != face for p in points):
+        return points
+    return tuple(replace(p, face=face) if p.channel else p for p in points)

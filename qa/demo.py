@@ -171,6 +171,21 @@ DOOR_PATTERN = (
 )
 
 
+#: What each crew reports it did, by the seal-point fragment of the pattern (invented, trade-typical).
+FIX_NOTES = {
+    "bottom-perimeter-a": "Cleaned the slab edge; continuous acoustical sealant bead run under the board.",
+    "track": "Bedded the bottom track on a sealant bead both edges; no daylight left under the plate.",
+    "back-box-seal": "Circuit off and tested dead; knockouts plugged, putty pad wrapped on the box.",
+    "box-spacing": "Moved the unit-side box one stud bay over; old cut-out patched and both boxes padded.",
+    "pipe": "Annular space packed and closed with the listed firestop sealant on both faces.",
+    "duct": "Sleeve packed to the approved detail; damper clearance left as its listing says.",
+    "insulation": "Fitted a full batt in the empty bay behind the vanity, cut to width, not compressed.",
+    "head": "Deflection gap packed with mineral wool and closed with the listed joint sealant.",
+    "cut-outs": "Cut back to sound board, patched with a screwed board insert and taped.",
+    "door-bottom": "Fitted the automatic door bottom and set the plunger to seal on the threshold.",
+}
+
+
 def _users():
     User = get_user_model()
     users = {}
@@ -377,7 +392,9 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
             # On level 3 a few fixes wait for the inspector; level 4 was walked today.
             crew = users.get(trade, inspector)
             if wall.level == "2" or (wall.level == "3" and made % 3 == 0):
-                finding.mark_fixed(crew, "Sealed and tooled.", device_id="demo-phone-2")
+                finding.mark_fixed(
+                    crew, FIX_NOTES.get(frag, "Repaired to the detail."), device_id="demo-phone-2"
+                )
                 if wall.level == "2" and made % 3 != 1:
                     finding.verify(inspector, "Checked on site.", device_id="demo-phone-1")
     # Levels 2 and 3 are walked: every seal point without a defect passed.

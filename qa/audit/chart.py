@@ -25,7 +25,7 @@ LEFT, RIGHT, TOP, BOTTOM = 46.0, 10.0, 12.0, 44.0
 
 STYLES = {  # stroke colour, width, dash ("" = solid)
     "designed": ("#1f3a3d", 2.2, ""),
-    "walked": ("#8a5a00", 1.6, "9 3 2 3"),
+    "walked": ("#8a5a00", 1.6, "9 4"),
     "current": ("#b3261e", 3.0, ""),
     "after": ("#0b6e69", 1.2, "6 4"),
     "contour": ("#6b4fa0", 1.8, "2 3"),

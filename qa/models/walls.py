@@ -75,7 +75,11 @@ class Wall(models.Model):
         return self.length_m * self.height_m
 
     def add_template_seal_points(self, construction: str | None = None) -> list[SealPoint]:
-        """Create this wall's seal points from its wall type's checklist template (or another one)."""
+        """Create this wall's seal points from its wall type's checklist template (or another one).
+
+        The template is placed on the wall type's faces (:func:`qa.checklists.template_for`): the
+        resilient-channel checks go on the face its layers give the channel.
+        """
         from ..checklists import template_for
 
         start = (self.seal_points.aggregate(models.Max("position"))["position__max"] or -1) + 1
@@ -94,7 +98,9 @@ class Wall(models.Model):
                 caution=t.caution,
                 position=start + i,
             )
-            for i, t in enumerate(template_for(construction or self.wall_type.construction))
+            for i, t in enumerate(
+                template_for(construction or self.wall_type.construction, self.wall_type.layers)
+            )
         ]
         return SealPoint.objects.bulk_create(points)
 

@@ -23,6 +23,7 @@ from django.utils import timezone
 from .. import units
 from ..audit import audits_for_walls, fix_steps
 from ..audit.presentation import finding_size
+from ..audit.verdicts import by_level, face_name, glossary, rollup, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
 from ..choices import FindingStatus
 from ..models import Event, Finding, Photo, Wall
@@ -63,15 +64,26 @@ def report_content(job) -> dict:
         photos.setdefault(fid, []).append(sha)
     u = job.units
     steps = {w.pk: fix_steps(audits[w.pk]) for w in walls}
+    verdicts = verdicts_for_walls(walls, audits)
     wall_rows = []
     for w in walls:
         a = audits[w.pk]
+        v = verdicts[w.pk]
         wall_rows.append(
             {
                 "id": w.pk,
                 "tag": w.tag,
                 "level": w.level,
                 "location": w.location,
+                "face_a": w.face_a_label,
+                "face_b": w.face_b_label,
+                "state": v["state"],
+                "state_word": v["word"],
+                "state_text": v["text"],
+                "tone": v["tone"],
+                "checked": v["coverage"]["checked"],
+                "points": v["coverage"]["total"],
+                "faces_text": v["faces_text"],
                 "wall_type": f"{w.wall_type.code} {w.wall_type.name}",
                 "size": f"{units.fmt(w.length_m, 'size', u)} x {units.fmt(w.height_m, 'size', u)}",
                 "scheme": a["scheme"],
@@ -97,7 +109,7 @@ def report_content(job) -> dict:
                 "wall": f.wall.tag,
                 "level": f.wall.level,
                 "kind": f.get_kind_display(),
-                "face": f.get_face_display(),
+                "face": face_name(f.wall, f.face),
                 "size": size_text(f, u),
                 "trade": f.get_trade_display(),
                 "status": f.status,
@@ -112,6 +124,9 @@ def report_content(job) -> dict:
                 "verified_by": _who(f.verified_by),
                 "verified_at": _when(f.verified_at),
                 "buys": st.get("buys"),
+                "alone": st.get("alone"),
+                "needed": st.get("needed", False),
+                "wall_state": verdicts[f.wall_id]["word"],
                 "step": st.get("step"),
                 "share": st.get("share"),
                 "photos": photos.get(f.pk, []),
@@ -120,7 +135,9 @@ def report_content(job) -> dict:
     status = [f["status"] for f in finding_rows]
     totals = {
         "walls": len(wall_rows),
-        "below_target": sum(1 for w in wall_rows if w["shortfall"]),
+        "below_target": sum(1 for w in wall_rows if w["state"] == "below"),
+        "meets": sum(1 for w in wall_rows if w["state"] == "meets"),
+        "not_fully_walked": sum(1 for w in wall_rows if w["state"] in ("not_walked", "partly_walked")),
         "findings": len(finding_rows),
         "open": sum(s in (FindingStatus.OPEN, FindingStatus.REOPENED) for s in status),
         "fixed": status.count(FindingStatus.FIXED),
@@ -139,7 +156,31 @@ def report_content(job) -> dict:
         "walls": wall_rows,
         "findings": finding_rows,
         "totals": totals,
+        "coverage": {
+            "job": _plain_rollup(rollup(walls, verdicts)),
+            "levels": [_plain_rollup(r) for r in by_level(walls, verdicts)],
+        },
+        "glossary": glossary(),
         "cautions": [[c.title, c.text, c.basis] for c in (CAUTIONS[k] for k in GENERAL_CAUTIONS)],
+    }
+
+
+def _plain_rollup(r: dict) -> dict:
+    keys = ("level", "checked", "total", "walls", "meets", "below", "partly_walked", "not_walked", "text")
+    return {k: r[k] for k in keys if k in r}
+
+
+def outstanding(content: dict) -> dict:
+    """What is still open before sign-off: open items, walls below target, walls not fully walked."""
+    walls = content["walls"]
+    return {
+        "open": [
+            f for f in content["findings"] if f["status"] in (FindingStatus.OPEN, FindingStatus.REOPENED)
+        ],
+        "waiting": [f for f in content["findings"] if f["status"] == FindingStatus.FIXED],
+        "below": [w for w in walls if w["state"] == "below"],
+        "unwalked": [w for w in walls if w["state"] in ("not_walked", "partly_walked")],
+        "no_rating": [w for w in walls if w["state"] == "no_rating"],
     }
 
 
@@ -169,11 +210,22 @@ def neutralise(value) -> str:
     return "'" + text if text.startswith(FORMULA_START) else text
 
 
+#: Spreadsheet programs read a CSV as UTF-8 only when it starts with the byte order mark; without
+#: it they garble cm², × and ⌀.
+BOM = "\ufeff"
+
+
 def punch_list_csv(job, content: dict | None = None) -> str:
-    """The punch list (every live finding) as CSV, one row per finding, sizes in the job's units."""
+    """The punch list (every live finding) as CSV, one row per finding, sizes in the job's units.
+
+    Starts with a UTF-8 byte order mark; faces are named by the wall's face labels; each row carries
+    the state of its wall in the words of :mod:`qa.audit.verdicts` with the seal points checked.
+    """
     content = content or report_content(job)
     out = io.StringIO()
+    out.write(BOM)
     writer = csv.writer(out)
+    walls = {w["tag"]: w for w in content["walls"]}
     writer.writerow(
         [
             "finding",
@@ -185,8 +237,13 @@ def punch_list_csv(job, content: dict | None = None) -> str:
             "trade",
             "seal point",
             "status",
+            "position",
             "fix-first step",
-            "rating bought back",
+            "fix buys in order",
+            "fix buys alone",
+            "needed for target",
+            "wall state",
+            "wall seal points checked",
             "note",
             "found by",
             "found at",
@@ -212,8 +269,13 @@ def punch_list_csv(job, content: dict | None = None) -> str:
                     f["trade"],
                     f["seal_point"],
                     f["status_label"],
+                    f.get("position", ""),
                     f["step"] or "",
                     f["buys"] if f["buys"] is not None else "",
+                    f["alone"] if f["alone"] is not None else "",
+                    "yes" if f["needed"] else "",
+                    walls[f["wall"]]["state_text"],
+                    f"{walls[f['wall']]['checked']} of {walls[f['wall']]['points']}",
                     f["note"],
                     f["found_by"],
                     f["found_at"],

@@ -10,6 +10,7 @@ import io
 
 from ..audit import audits_for_walls
 from ..audit import chart as chart_mod
+from ..audit.verdicts import GAINS, NEEDED, RATINGS
 from ..choices import FindingStatus
 from ..models import Photo, Wall
 from .content import _when, _who, content_sha256, last_sign_off
@@ -33,6 +34,10 @@ _LATIN = str.maketrans(
         "\u00a0": " ",
     }
 )
+
+
+#: Text colours of the wall states' tones (qa.audit.verdicts): the same meaning as on the pages.
+TONE_RGB = {"good": (28, 124, 58), "bad": (179, 38, 30), "pending": (93, 74, 138), "neutral": (55, 71, 79)}
 
 
 def pdf_text(value) -> str:
@@ -80,12 +85,16 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         pdf.ln(2)
         para(text, size, "B", 7)
 
-    def row(cells, widths, style="", size=8, fill=False):
+    def row(cells, widths, style="", size=8, fill=False, tone=None):
         pdf.set_font("Helvetica", style, size)
         if pdf.will_page_break(5):
             pdf.add_page()
-        for text, width in zip(cells, widths, strict=True):
+        for k, (text, width) in enumerate(zip(cells, widths, strict=True)):
+            # The state cell (the one before last) takes its tone's colour: meeting the target is never red.
+            if tone and k == len(cells) - 2:
+                pdf.set_text_color(*TONE_RGB.get(tone, (0, 0, 0)))
             pdf.cell(width, 5, _fit(pdf, pdf_text(text), width - 1), border="B", fill=fill)
+            pdf.set_text_color(0, 0, 0)
         pdf.ln(5)
 
     pdf.add_page()
@@ -97,8 +106,10 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     if content["targets"]:
         para("Targets: " + "; ".join(f"{n} {t}" for n, t in content["targets"]))
     t = content["totals"]
+    cov = content["coverage"]["job"]
     para(
-        f"{t['walls']} walls, {t['below_target']} below target now. "
+        f"{t['walls']} walls: {t['meets']} meet their target, {t['below_target']} below target now, "
+        f"{t['not_fully_walked']} not fully walked ({cov['text']}). "
         f"{t['findings']} findings: {t['open']} open, "
         f"{t['fixed']} reported fixed awaiting check, {t['verified']} verified.",
         11,
@@ -121,9 +132,31 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         para("Not signed off yet.", 9, "B")
     para(
         "Ratings are laboratory-type estimates from the recorded gaps (designed curve with the findings as "
-        "leaks). Current counts only fixes the inspector verified; As found has every recorded finding open.",
+        f"leaks). {RATINGS['current'].word}: {RATINGS['current'].meaning} {RATINGS['as_found'].word}: "
+        f"{RATINGS['as_found'].meaning} A wall meets its target only when every seal point is checked.",
         9,
     )
+
+    heading("Coverage")
+    cw = [30, 40, 28, 28, 28, 28]
+    row(["Level", "Seal points checked", "Meets", "Below", "Partly walked", "Not walked"], cw, "B")
+    for c in [*content["coverage"]["levels"], {**cov, "level": "Job"}]:
+        row(
+            [
+                c["level"],
+                f"{c['checked']} of {c['total']}",
+                c["meets"],
+                c["below"],
+                c["partly_walked"],
+                c["not_walked"],
+            ],
+            cw,
+            "B" if c["level"] == "Job" else "",
+        )
+
+    heading("Glossary")
+    for g in content["glossary"]:
+        para(f"{g['word']} ({g['group'].lower()}): {g['meaning']}", 8, h=4)
 
     heading("Cautions")
     for title, text, basis in content["cautions"]:
@@ -131,9 +164,19 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         para(f"{text} ({basis})", 8, h=4)
 
     heading("Walls")
-    widths = [18, 10, 44, 18, 20, 20, 20, 14, 16]
+    widths = [16, 10, 30, 16, 18, 18, 18, 40, 14]
     row(
-        ["Wall", "Level", "Wall type", "Target", "Designed", "As found", "Current", "Short", "Open"],
+        [
+            "Wall",
+            "Level",
+            "Wall type",
+            RATINGS["target"].word,
+            RATINGS["designed"].word,
+            RATINGS["as_found"].word,
+            RATINGS["current"].word,
+            "State (seal points checked)",
+            "Open",
+        ],
         widths,
         "B",
     )
@@ -151,10 +194,12 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
                 _rating(w, w["designed"]),
                 _rating(w, w["walked"]),
                 _rating(w, w["current"]),
-                w["shortfall"] if w["shortfall"] else "",
+                f"{w['state_word']}{' by ' + str(w['shortfall']) if w['state'] == 'below' else ''} "
+                f"({w['checked']}/{w['points']})",
                 open_by_wall.get(w["tag"], 0),
             ],
             widths,
+            tone=w["tone"],
         )
 
     by_wall: dict[str, list] = {}
@@ -167,10 +212,16 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         if pdf.will_page_break(95):
             pdf.add_page()
         heading(f"Wall {w['tag']} - level {w['level']}, {w['location']}", 12)
+        pdf.set_text_color(*TONE_RGB.get(w["tone"], (0, 0, 0)))
+        para(f"{w['state_text']}.", 10, "B")
+        pdf.set_text_color(0, 0, 0)
         para(
-            f"{w['wall_type']}; {w['size']}. Target {_rating(w, w['target'])}, designed "
-            f"{_rating(w, w['designed'])}, as found {_rating(w, w['walked'])}, current (verified fixes) "
-            f"{_rating(w, w['current'])}, if reported fixes hold {_rating(w, w['reported'])}.",
+            f"{w['wall_type']}; {w['size']}. {RATINGS['target'].word} {_rating(w, w['target'])}, "
+            f"{RATINGS['designed'].word.lower()} {_rating(w, w['designed'])}, "
+            f"{RATINGS['as_found'].word.lower()} {_rating(w, w['walked'])}, "
+            f"{RATINGS['current'].word.lower()} {_rating(w, w['current'])}, "
+            f"{RATINGS['reported'].word.lower()} {_rating(w, w['reported'])}. Seal points checked: "
+            f"{w['faces_text'] or 'none on this wall'}.",
             9,
         )
         if w["terms"]:
@@ -178,7 +229,7 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         if w["error"]:
             para(f"No rating: {w['error']}", 9, "B")
         else:
-            _draw_chart(pdf, chart_mod.tl_chart(audits[w["id"]]))
+            _draw_chart(pdf, chart_mod.tl_chart(audits[w["id"]], verdict={"tone": w["tone"]}))
         for text in w["flags"]:
             para(f"Model note: {text}", 7, h=3.5)
         for u in w["unmodelled"]:
@@ -186,7 +237,12 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         for f in items:
             if pdf.will_page_break(12):
                 pdf.add_page()
-            buys = f", fix-first step {f['step']} buys +{f['buys']} {w['rating_name']}" if f["step"] else ""
+            buys = (
+                f", fix-first step {f['step']} buys +{f['buys']} {w['rating_name']} {GAINS['in_order'].word}"
+                f" (+{f['alone']} {GAINS['alone'].word}){', ' + NEEDED.word if f['needed'] else ''}"
+                if f["step"]
+                else ""
+            )
             para(
                 f"#{f['id']} {f['kind']}, {f['size']}, {f['face'].lower()}, {f['trade']}: "
                 f"{f['status_label']}{buys}",
@@ -219,6 +275,12 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
                 pdf.set_y(y + 26)
 
     heading("Open items (fix-first order within each wall)")
+    para(
+        f"Buys = rating points {GAINS['in_order'].word}: {GAINS['in_order'].meaning} Items marked "
+        f"'{NEEDED.word}' (bold) are the ones that bring their wall to its target.",
+        8,
+        h=4,
+    )
     ow = [16, 12, 34, 40, 30, 14, 34]
     row(["Wall", "#", "Kind", "Size", "Trade", "Buys", "Seal point"], ow, "B")
     open_items = [f for f in content["findings"] if f["status"] != FindingStatus.VERIFIED]
@@ -235,6 +297,7 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
                 f["seal_point"],
             ],
             ow,
+            "B" if f["needed"] else "",
         )
     return bytes(pdf.output())
 

@@ -11,12 +11,15 @@ from django.contrib.auth.decorators import login_required
 from django.core.exceptions import PermissionDenied
 from django.http import HttpResponse
 from django.shortcuts import redirect, render
+from django.urls import reverse
 from django.views.decorators.http import require_POST
 
 from .. import report as report_mod
 from ..access import can, job_for
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..models import Event
+from ..report.content import outstanding
+from . import feedback
 
 
 @login_required
@@ -25,10 +28,18 @@ def report_page(request, job_pk):
     content = report_mod.report_content(job)
     digest = report_mod.content_sha256(content)
     signed = report_mod.last_sign_off(job)
+    out = outstanding(content)
+    top, beside = feedback.split(request, [0])  # 0: the sign-off form
     return render(
         request,
         "qa/report/index.html",
         {
+            "page_messages": top,
+            "sign_feedback": beside.get(0, []),
+            "out": out,
+            "anything_outstanding": any(out.values()),
+            "coverage": content["coverage"],
+            "glossary": content["glossary"],
             "job": job,
             "member": member,
             "digest": digest,
@@ -54,6 +65,7 @@ def report_pdf(request, job_pk):
 @login_required
 def punch_list_csv(request, job_pk):
     job, _member = job_for(request.user, job_pk)
+    # The body starts with the UTF-8 byte order mark (see qa.report.content.BOM).
     response = HttpResponse(report_mod.punch_list_csv(job), content_type="text/csv; charset=utf-8")
     response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-punch-list.csv"'
     return response
@@ -62,18 +74,34 @@ def punch_list_csv(request, job_pk):
 @login_required
 @require_POST
 def sign_off(request, job_pk):
-    """The owner signs the report as it stands: an Event with who, when and the content's sha256."""
+    """The owner signs the report as it stands: an Event with who, when and the content's sha256.
+
+    When items are still open, fixes wait for a check, or walls are below target or not fully
+    walked, the owner must tick the confirmation; what was outstanding is recorded with the event.
+    """
     job, member = job_for(request.user, job_pk)
     if not can(member, "sign"):
         raise PermissionDenied("Only the owner signs off the hand-over report")
     content = report_mod.report_content(job)
     digest = report_mod.content_sha256(content)
     seen = request.POST.get("sha256", "")
+    back = redirect(reverse("qa:report", kwargs={"job_pk": job.pk}) + "#s-h")
     if seen and seen != digest:
         messages.error(
-            request, "The record changed while you were reading; review the report again, then sign."
+            request,
+            "The record changed while you were reading; review the report again, then sign.",
+            extra_tags=feedback.tag(0),
         )
-        return redirect("qa:report", job_pk=job.pk)
+        return back
+    out = outstanding(content)
+    confirmed = request.POST.get("confirm") == "yes"
+    if any(out.values()) and not confirmed:
+        messages.error(
+            request,
+            "confirm: tick the box to sign with the items listed above still outstanding.",
+            extra_tags=feedback.tag(0),
+        )
+        return back
     Event.record(
         job,
         request.user,
@@ -84,7 +112,15 @@ def sign_off(request, job_pk):
             "who": request.user.get_full_name() or request.user.username,
             "walls": content["totals"]["walls"],
             "open": content["totals"]["open"],
+            "outstanding": {
+                "open": [f["id"] for f in out["open"]],
+                "waiting_check": [f["id"] for f in out["waiting"]],
+                "below_target": [w["tag"] for w in out["below"]],
+                "not_fully_walked": [w["tag"] for w in out["unwalked"]],
+                "no_rating": [w["tag"] for w in out["no_rating"]],
+            },
+            "confirmed_outstanding": bool(any(out.values()) and confirmed),
         },
     )
-    messages.success(request, "Hand-over report signed off.")
-    return redirect("qa:report", job_pk=job.pk)
+    messages.success(request, "Hand-over report signed off.", extra_tags=feedback.tag(0))
+    return back

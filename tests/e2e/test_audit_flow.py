@@ -105,11 +105,17 @@ def test_owner_crew_inspector_flow(size, demo_job, browser, live_server, artifac
     assert "Hand-over report: Harbourline Residences" in text
     assert wall.tag in text and finding.get_kind_display() in text
     assert "Estimates, not field tests" in text
+    # The demo still has open items and unwalked walls: they are listed, and signing needs a confirmation.
+    assert page.locator("[data-outstanding]").is_visible()
+    page.click("text=Sign off this report")
+    assert page.locator("[data-signoff=none]").is_visible()  # the browser refused the unticked form
+    page.check("input[name=confirm]")
     page.click("text=Sign off this report")
     assert page.locator("[data-signoff=current]").is_visible()
     shot("report")
     signed = Event.objects.filter(job=job, verb="report.signed").latest("id")
     assert len(signed.data["sha256"]) == 64
+    assert signed.data["confirmed_outstanding"] is True and signed.data["outstanding"]["open"]
 
     # A drywall crew lead marks the finding fixed with a photo.
     ctx.clear_cookies()

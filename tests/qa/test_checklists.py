@@ -21,7 +21,7 @@ from pathlib import Path
 import pytest
 
 from qa.cautions import CAUTIONS, GENERAL_CAUTIONS, Caution, cautions_for
-from qa.checklists import GAP_KEYS, LIGHT_FRAME, TEMPLATES, SealPointTemplate, template_for
+from qa.checklists import GAP_KEYS, LIGHT_FRAME, TEMPLATES, SealPointTemplate, channel_face, template_for
 from qa.choices import AREA_KINDS, Construction, Face, GapKind, Trade
 
 IN = 0.0254  # m, exact (NIST SP 811)
@@ -67,13 +67,13 @@ def test_light_frame_covers_the_common_seal_points(kind):
         "bottom-perimeter-a",
         "bottom-perimeter-b",  # row 1, both faces (ASTM C919 example)
         "head",
-        "vertical-perimeter",
+        "vertical-perimeter-a",
         "track-to-floor",
-        "board-joints",
-        "cut-outs",  # rows 2-6
-        "back-box-seal",
+        "board-joints-a",
+        "cut-outs-a",  # rows 2-6
+        "back-box-seal-a",
         "back-box-spacing",
-        "box-cut-outs",  # row 7, §1.4
+        "box-cut-outs-a",  # row 7, §1.4
         "pipe-penetrations",
         "duct-penetrations",
         "recessed-items",
@@ -100,12 +100,14 @@ def test_light_frame_covers_the_common_seal_points(kind):
         (
             "masonry",
             {
-                "surface-seal",
+                "surface-seal-a",
+                "surface-seal-b",
                 "mortar-joints",
                 "head",
                 "pipe-penetrations",
                 "back-box-spacing",
-                "box-cut-outs",
+                "box-cut-outs-a",
+                "box-cut-outs-b",
                 "form-ties",
             },
         ),
@@ -131,10 +133,47 @@ def test_assembly_specific_checks_present(kind, checks):
 
 
 def test_rc_short_circuit_points_are_on_the_channel_face():
-    """FP §1.5: the channel carries face A's board; a short circuit affects that face's area."""
+    """FP §1.5: the channel carries one face's board; a short circuit affects that face's area.
+    With no layers the template puts the channel on face A."""
     rc = {p.key: p for p in template_for("resilient_channel")}
     assert rc["rc-screws"].gap_kind == GapKind.CHANNEL_SHORT
     assert rc["rc-screws"].face == "a"
+
+
+@pytest.mark.parametrize(("leaf", "face"), [(0, "a"), (1, "b")])
+def test_channel_checks_follow_the_channel_in_the_layers(leaf, face):
+    """The channel checks sit on the face whose leaf carries the channel (acoustics.Assembly: leaf 0
+    is face A, leaf 1 face B); every other point keeps its face."""
+    layers = {"connection": {"type": "steel_stud", "resilient_channel": {"leaf": leaf, "spacing": 0.61}}}
+    placed = template_for("resilient_channel", layers)
+    stored = template_for("resilient_channel")
+    channel = {p.key for p in stored if p.channel}
+    assert channel == {"rc-screws", "rc-orientation", "rc-direct", "rc-edges", "rc-fixtures"}
+    for p, q in zip(placed, stored, strict=True):
+        assert p.face == (face if p.key in channel else q.face), p.key
+    assert channel_face(layers) == face
+    assert channel_face({"connection": {"type": "wood_stud"}}) is None
+    assert channel_face(None) is None
+
+
+@pytest.mark.parametrize(
+    "kind", ["wood_stud", "steel_stud", "staggered_stud", "double_stud", "resilient_channel"]
+)
+def test_board_joints_boxes_and_cut_outs_on_both_faces(kind):
+    """FP §1.3 rows 3, 5-7 and §1.4: both faces of a stud wall are board, with its own joints, boxes
+    and cut-outs, so each face gets those checks."""
+    faces: dict[str, set] = {}
+    for p in template_for(kind):
+        base = p.key.rsplit("-", 1)[0] if p.key.endswith(("-a", "-b")) else p.key
+        faces.setdefault(base, set()).add(p.face)
+    for base in ("vertical-perimeter", "board-joints", "cut-outs", "back-box-seal", "box-cut-outs"):
+        assert faces[base] == {"a", "b"}, base
+
+
+def test_shaft_side_has_no_board_face_checks():
+    """A shaft wall's face B is liner panel in runners (FP §1.5, from memory): no board joints or boxes."""
+    b_keys = {p.key for p in template_for("shaft_wall") if p.face == "b"}
+    assert b_keys == {"bottom-perimeter-b", "liner-joints"}
 
 
 # --- vocabularies and text -------------------------------------------------------------------
@@ -239,8 +278,9 @@ def test_pipe_ring_and_box_leak_defaults():
     ring = wall["pipe-penetrations"].gap
     assert ring["width_m"] == pytest.approx(0.25 * IN, abs=0.5e-3)
     assert ring["diameter_m"] == pytest.approx(0.022, abs=1e-3)  # 3/4 in copper, 22 mm OD
-    assert wall["back-box-seal"].gap["area_m2"] == pytest.approx(IN**2, rel=1e-3)
-    assert wall["box-cut-outs"].gap["area_m2"] == pytest.approx(6 * IN**2, rel=1e-3)
+    for face in ("a", "b"):
+        assert wall[f"back-box-seal-{face}"].gap["area_m2"] == pytest.approx(IN**2, rel=1e-3)
+        assert wall[f"box-cut-outs-{face}"].gap["area_m2"] == pytest.approx(6 * IN**2, rel=1e-3)
 
 
 def test_door_defaults_within_nfpa80_clearances():
@@ -260,7 +300,7 @@ PENETRATION_OR_JOINT = re.compile(r"penetrations|perimeter|^head$|track-to-floor
 @pytest.mark.parametrize(("kind", "point"), ALL_POINTS, ids=IDS)
 def test_penetrations_and_perimeter_joints_carry_a_firestop_caution(kind, point):
     """FP §3.1 (IBC §714, §715; ASTM E814, E1966); ducts point to the damper caution (FP §3.3)."""
-    if point.key == "vertical-perimeter" or PENETRATION_OR_JOINT.search(point.key):
+    if point.key.startswith("vertical-perimeter") or PENETRATION_OR_JOINT.search(point.key):
         assert point.caution in FIRESTOP | {"fire_doors"}
         if kind != "door":
             assert point.caution in FIRESTOP

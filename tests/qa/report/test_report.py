@@ -64,12 +64,24 @@ def test_neutralise(text, expected):
 
 
 def test_csv_punch_list(world, findings):
-    rows = list(csv.reader(io.StringIO(report.punch_list_csv(world.job))))
-    assert rows[0][0] == "finding" and len(rows) == 3
-    notes = {r[0]: r for r in rows[1:]}
-    assert notes[str(findings[0].pk)][11] == '\'=HYPERLINK("http://x")'
-    assert notes[str(findings[1].pk)][14] == "'-pad fitted"
+    text = report.punch_list_csv(world.job)
+    # RFC 3629 §6 / Unicode FAQ: U+FEFF at the start is the UTF-8 signature spreadsheet programs read.
+    assert text.startswith("\ufeff") and text.encode("utf-8")[:3] == b"\xef\xbb\xbf"
+    rows = list(csv.reader(io.StringIO(text.removeprefix("\ufeff"))))
+    head = rows[0]
+    assert head[0] == "finding" and len(rows) == 3
+    notes = {r[0]: dict(zip(head, r, strict=True)) for r in rows[1:]}
+    assert notes[str(findings[0].pk)]["note"] == '\'=HYPERLINK("http://x")'
+    assert notes[str(findings[1].pk)]["fix note"] == "'-pad fitted"
     assert all(not cell.startswith(("=", "+", "-", "@")) for r in rows for cell in r)
+    # Faces by the wall's own labels, never the generic "Face A only".
+    faces = {r["face"] for r in notes.values()}
+    assert faces <= {world.wall.face_a_label, world.wall.face_b_label, "Through the wall"}
+    assert all("only" not in f for f in faces)
+    # The wall state comes with its coverage; a wall with unchecked points never reads "Meets".
+    for r in notes.values():
+        checked, total = (int(x) for x in r["wall seal points checked"].split(" of "))
+        assert checked < total and not r["wall state"].startswith("Meets")
 
 
 def test_content_hash_stable_and_changes_with_the_record(world, findings):
@@ -102,6 +114,8 @@ def test_pdf_states_walls_findings_cautions_rule_set(world, findings):
     assert content["totals"] == {
         "walls": 1,
         "below_target": 1,
+        "meets": 0,
+        "not_fully_walked": 0,
         "findings": 2,
         "open": 1,
         "fixed": 1,

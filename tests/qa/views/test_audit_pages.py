@@ -182,12 +182,26 @@ def test_unsafe_next_is_ignored(world, finding):
 def test_owner_signs_and_a_later_change_makes_it_stale(world, finding):
     c = client_for(world.owner)
     assert client_for(world.inspector).post(urls(world, finding)["sign"]).status_code == 403
-    assert c.post(urls(world, finding)["sign"]).status_code == 302
+    # An open item and a wall below target (its seal points unchecked) are outstanding: the page
+    # lists them, with the wall's coverage, and asks to confirm.
+    page = c.get(urls(world, finding)["report"]).content.decode()
+    assert 'data-out="open"' in page and 'data-out="below"' in page and 'name="confirm"' in page
+    assert f"0 of {world.wall.seal_points.count()} seal points checked" in page
+    r = c.post(urls(world, finding)["sign"], follow=True)
+    assert not Event.objects.filter(verb="report.signed").exists()
+    body = r.content.decode()
+    # The error sits in the sign-off form, beside the control, not in the notices at the top.
+    form = body[body.index('class="stack sign-form"') :]
+    assert "confirm: tick the box" in form[: form.index("</form>")]
+    assert c.post(urls(world, finding)["sign"], {"confirm": "yes"}).status_code == 302
     ev = Event.objects.get(verb="report.signed")
+    assert ev.data["confirmed_outstanding"] is True
+    assert ev.data["outstanding"]["open"] == [finding.pk]
+    assert ev.data["outstanding"]["below_target"] == [world.wall.tag]
     assert ev.actor == world.owner and len(ev.data["sha256"]) == 64
     assert 'data-signoff="current"' in c.get(urls(world, finding)["report"]).content.decode()
     finding.mark_fixed(world.electrician, "done")
     assert 'data-signoff="stale"' in c.get(urls(world, finding)["report"]).content.decode()
     # Signing against a hash that is no longer current is refused.
-    c.post(urls(world, finding)["sign"], {"sha256": ev.data["sha256"]})
+    c.post(urls(world, finding)["sign"], {"sha256": ev.data["sha256"], "confirm": "yes"})
     assert Event.objects.filter(verb="report.signed").count() == 1
