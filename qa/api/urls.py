@@ -6,7 +6,7 @@ from django.urls import include, path
 from rest_framework.routers import SimpleRouter
 
 from .. import converters  # noqa: F401  (registers <id:...>)
-from . import auth, docs, photo_views, views
+from . import auth, docs, field, photo_views, views
 
 jobs = SimpleRouter()
 jobs.register("jobs", views.JobViewSet, basename="job")
@@ -22,11 +22,28 @@ in_job.register("events", views.EventViewSet, basename="event")
 in_wall = SimpleRouter()
 in_wall.register("openings", views.OpeningViewSet, basename="opening")
 in_wall.register("seal-points", views.SealPointViewSet, basename="sealpoint")
+in_wall.register("rooms", field.RoomPairViewSet, basename="roompair")
+in_wall.register("junctions", field.JunctionOverrideViewSet, basename="junction")
+in_wall.register("field-tests", field.FieldTestViewSet, basename="fieldtest")
 
 urlpatterns = [
     path("", include(jobs.urls)),
     path("jobs/<id:job_pk>/", include(in_job.urls)),
     path("jobs/<id:job_pk>/walls/<id:wall_pk>/", include(in_wall.urls)),
+    path(
+        "jobs/<id:job_pk>/walls/<id:wall_pk>/field-prediction/",
+        field.FieldPredictionViewSet.as_view({"get": "list"}),
+        name="field-prediction",
+    ),
+    path("jobs/<id:job_pk>/test-plan/", field.TestPlanViewSet.as_view({"get": "list"}), name="test-plan"),
+    path(
+        "jobs/<id:job_pk>/test-plan.csv", field.TestPlanViewSet.as_view({"get": "csv"}), name="test-plan-csv"
+    ),
+    path(
+        "jobs/<id:job_pk>/building-kind/",
+        field.BuildingKindViewSet.as_view({"get": "list", "put": "create"}),
+        name="building-kind",
+    ),
     path("auth/token/", auth.ObtainToken.as_view(), name="token"),
     path("auth/token/revoke/", auth.RevokeToken.as_view(), name="token-revoke"),
     path("schema/", docs.schema_view, name="schema"),

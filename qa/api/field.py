@@ -1,0 +1,138 @@
+"""Field-rating API: a wall's rooms, junctions, field tests and field prediction; the job's test plan.
+
+Job-scoped like every endpoint (:class:`qa.api.views.JobScopedMixin`): a non-member gets 404; the
+inspector writes, every member reads. Each answer about a prediction carries the caution that a
+prediction is not a field test.
+"""
+
+from __future__ import annotations
+
+from django.db import transaction
+from django.http import HttpResponse
+from rest_framework import mixins, viewsets
+from rest_framework.response import Response
+
+from ..field.plan import plan_csv, test_plan
+from ..field.prediction import field_prediction
+from ..models import FieldTest, JunctionOverride, RoomPair, Wall
+from . import field_serializers as fs
+from .views import JobScopedMixin, WallChildMixin
+
+
+class _Recorded:
+    """Create, change and delete with an event in the job's trail, all in one transaction."""
+
+    noun = ""
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        obj = serializer.save(wall=self.wall)
+        self.record(f"{self.noun}.created", obj, {"wall": self.wall.tag})
+
+    @transaction.atomic
+    def perform_update(self, serializer):
+        obj = serializer.save()
+        self.record(
+            f"{self.noun}.changed", obj, {"wall": self.wall.tag, "fields": sorted(serializer.validated_data)}
+        )
+
+    @transaction.atomic
+    def perform_destroy(self, obj):
+        self.record(f"{self.noun}.removed", obj, {"wall": self.wall.tag})
+        obj.delete()
+
+
+class RoomPairViewSet(_Recorded, WallChildMixin, viewsets.ModelViewSet):
+    """The rooms on the two faces of a wall (volumes m³, receiving reverberation time s, area m²)."""
+
+    serializer_class = fs.RoomPairSerializer
+    queryset = RoomPair.objects.none()  # for the schema only
+    noun = "rooms"
+    http_method_names = ["get", "post", "patch", "put", "delete", "head", "options"]
+
+    def get_queryset(self):
+        return RoomPair.objects.filter(wall=self.wall).order_by("id")
+
+
+class JunctionOverrideViewSet(_Recorded, WallChildMixin, viewsets.ModelViewSet):
+    """Junctions a consultant entered; positions without one default from the job's building kind."""
+
+    serializer_class = fs.JunctionOverrideSerializer
+    queryset = JunctionOverride.objects.none()
+    noun = "junction"
+
+    def get_queryset(self):
+        return JunctionOverride.objects.filter(wall=self.wall).order_by("position")
+
+
+class FieldTestViewSet(
+    _Recorded,
+    WallChildMixin,
+    mixins.ListModelMixin,
+    mixins.RetrieveModelMixin,
+    mixins.CreateModelMixin,
+    mixins.DestroyModelMixin,
+    viewsets.GenericViewSet,
+):
+    """Field tests of a wall: POST JSON ``bands`` or a multipart CSV ``file`` (band_hz,l1,l2,b2,t2)."""
+
+    serializer_class = fs.FieldTestSerializer
+    queryset = FieldTest.objects.none()
+    noun = "field_test"
+
+    def get_queryset(self):
+        return FieldTest.objects.filter(wall=self.wall).order_by("-tested_on", "-id")
+
+    @transaction.atomic
+    def perform_create(self, serializer):
+        obj = serializer.save(wall=self.wall, created_by=self.request.user)
+        self.record("field_test.created", obj, {"wall": self.wall.tag, "standard": obj.standard})
+
+
+class FieldPredictionViewSet(WallChildMixin, viewsets.GenericViewSet):
+    """GET the wall's predicted field rating (ISO 12354-1): as designed, as walked and now, per room pair."""
+
+    queryset = Wall.objects.none()
+
+    def list(self, request, *args, **kwargs):
+        self.wall.job = self.job
+        return Response(field_prediction(self.wall))
+
+
+class TestPlanViewSet(JobScopedMixin, viewsets.GenericViewSet):
+    """GET the job's test plan: walls ranked by predicted field margin and by what the walk found."""
+
+    queryset = Wall.objects.none()
+
+    def right_needed(self) -> str:
+        return "view"
+
+    def list(self, request, *args, **kwargs):
+        return Response(test_plan(self.job))
+
+    def csv(self, request, *args, **kwargs):
+        response = HttpResponse(plan_csv(test_plan(self.job)), content_type="text/csv; charset=utf-8")
+        response["Content-Disposition"] = f'attachment; filename="test-plan-job-{self.job.pk}.csv"'
+        return response
+
+
+class BuildingKindViewSet(JobScopedMixin, viewsets.GenericViewSet):
+    """GET or PUT the job's building kind (sets the default junctions of every wall's prediction)."""
+
+    serializer_class = fs.BuildingKindSerializer
+    queryset = Wall.objects.none()
+
+    def right_needed(self) -> str:
+        return "view" if self.request.method in ("GET", "HEAD", "OPTIONS") else "edit"
+
+    def list(self, request, *args, **kwargs):
+        return Response({"building_kind": self.job.building_kind})
+
+    @transaction.atomic
+    def create(self, request, *args, **kwargs):
+        serializer = self.get_serializer(data=request.data)
+        serializer.is_valid(raise_exception=True)
+        self.job.building_kind = serializer.validated_data["building_kind"]
+        self.job.save(update_fields=["building_kind", "updated_at"])
+        self.record("job.building_kind", self.job, {"building_kind": self.job.building_kind})
+        return Response({"building_kind": self.job.building_kind})
