@@ -68,6 +68,20 @@ class GapKind(models.TextChoices):
     BACK_TO_BACK = "back_to_back", "Back-to-back boxes"
 
 
+#: The sizes each kind of defect is recorded with (API names) and which of them are required. An open
+#: area needs its area, or a width and a length; the geometry check and the walk's form read this table.
+SIZE_RULES: dict[str, dict[str, tuple[str, ...]]] = {
+    GapKind.SLIT: {"sizes": ("width", "length", "depth"), "required": ("width", "length")},
+    GapKind.HOLE: {"sizes": ("diameter", "depth"), "required": ("diameter",)},
+    GapKind.RING: {"sizes": ("width", "diameter", "depth"), "required": ("width", "diameter")},
+    GapKind.OPEN_AREA: {"sizes": ("area", "depth"), "required": ("area",)},
+    GapKind.BACK_TO_BACK: {"sizes": ("area", "depth"), "required": ("area",)},
+    GapKind.BRIDGE: {"sizes": ("length",), "required": ()},
+    GapKind.MISSING_INSULATION: {"sizes": ("area",), "required": ("area",)},
+    GapKind.CHANNEL_SHORT: {"sizes": ("area",), "required": ("area",)},
+    GapKind.MISSING_LAYER: {"sizes": ("area",), "required": ("area",)},
+}
+
 #: Kinds whose size is a gap (width/length/diameter) rather than an affected area.
 GAP_KINDS = {GapKind.SLIT, GapKind.HOLE, GapKind.RING, GapKind.OPEN_AREA, GapKind.BACK_TO_BACK}
 #: Kinds measured as an affected wall area.

@@ -30,6 +30,29 @@ FIELD_QUANTITY = {
     "depth_m": "gap",
     "area_m2": "area",
 }
+#: A finding's stored SI field and its name in the API, the walk and its error messages.
+SI_TO_API = {
+    "width_m": "width",
+    "length_m": "length",
+    "diameter_m": "diameter",
+    "depth_m": "depth",
+    "area_m2": "area",
+}
+API_TO_SI = {api: si for si, api in SI_TO_API.items()}
+
+
+def in_job_units(value: float | None, quantity: str, units: str) -> float | None:
+    """A stored SI value as the job's units show it, to the precision a tape or a caliper reads
+    (six significant digits: sub-millimetre gaps survive, float noise does not)."""
+    if value is None:
+        return None
+    shown = from_si(value, quantity, units)
+    return float(f"{shown:.6g}") if shown is not None else None
+
+
+def table(units: str) -> dict:
+    """This job's factors and symbols for the walk: ``{quantity: {"factor": m per unit, "symbol": str}}``."""
+    return {q: {"factor": FACTORS[units][q], "symbol": SYMBOLS[units][q]} for q in FACTORS[units]}
 
 
 def to_si(value: float, quantity: str, units: str) -> float:

@@ -7,7 +7,8 @@ from django.conf import settings
 from django.db import models
 from django.utils import timezone
 
-from ..choices import AREA_KINDS, Face, Fill, FindingStatus, GapKind, Trade
+from ..choices import AREA_KINDS, SIZE_RULES, Face, Fill, FindingStatus, GapKind, Trade
+from ..units import API_TO_SI
 from .jobs import Job
 from .walls import SealPoint, Wall
 
@@ -29,17 +30,9 @@ def geometry_errors(kind: str, face: str, dims: dict, wall: Wall) -> dict[str, s
     Messages name the rule in words; the serializer puts them back in the job's units.
     """
     errors: dict[str, str] = {}
-    need = {
-        GapKind.SLIT: ("width_m", "length_m"),
-        GapKind.HOLE: ("diameter_m",),
-        GapKind.RING: ("width_m", "diameter_m"),
-        GapKind.OPEN_AREA: ("area_m2",) if dims.get("area_m2") is not None else ("width_m", "length_m"),
-        GapKind.BACK_TO_BACK: ("area_m2",),
-        GapKind.BRIDGE: (),
-        GapKind.MISSING_INSULATION: ("area_m2",),
-        GapKind.CHANNEL_SHORT: ("area_m2",),
-        GapKind.MISSING_LAYER: ("area_m2",),
-    }[kind]
+    need = tuple(API_TO_SI[name] for name in SIZE_RULES[kind]["required"])
+    if kind == GapKind.OPEN_AREA and dims.get("area_m2") is None:
+        need = ("width_m", "length_m")  # an open area may be given as its width and length
     for name in ("width_m", "length_m", "diameter_m", "depth_m", "area_m2"):
         value = dims.get(name)
         if value is None:
@@ -89,12 +82,6 @@ class FindingQuerySet(models.QuerySet):
         """Findings that count: not removed, on a wall that is not removed either (a removed wall's
         findings stay in the record but no list, bundle, total or CSV counts them)."""
         return self.filter(removed=False, wall__removed=False)
-
-    def unresolved(self) -> FindingQuerySet:
-        return self.live().exclude(status=FindingStatus.VERIFIED)
-
-    def for_trade(self, trade: str) -> FindingQuerySet:
-        return self.filter(trade=trade)
 
 
 class Finding(models.Model):
@@ -156,10 +143,6 @@ class Finding(models.Model):
 
     def geometry(self) -> dict:
         return {name: getattr(self, name) for name in self.GEOMETRY_FIELDS}
-
-    @property
-    def is_open(self) -> bool:
-        return self.status in (FindingStatus.OPEN, FindingStatus.REOPENED)
 
     # Lifecycle. Each step bumps the version and writes an Event; callers wrap them in a transaction.
     ALLOWED = {

@@ -257,11 +257,6 @@ def test_parallel_upload_finishes_store_each_photo_once_with_no_server_error(ser
     assert db_query(server, "SELECT count(*) FROM qa_photoupload")[0][0] == 0
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="finish_upload (qa/walk/uploads.py): the finish that loses the race takes the lock after the "
-    "winner deleted the upload row and answers 404 'open it first' instead of the stored photo",
-)
 def test_finish_that_loses_the_race_answers_the_stored_photo(server):
     uploads, answers = finish_all_twice_at_once(server, count=4)
     assert all(status in (200, 201) for status, _ in answers), [
