@@ -160,6 +160,7 @@ class WallSerializer(serializers.ModelSerializer):
     seal_points_total = serializers.IntegerField(read_only=True, default=None)
     seal_points_checked = serializers.IntegerField(read_only=True, default=None)
     findings_open = serializers.IntegerField(read_only=True, default=None)
+    verdict = serializers.SerializerMethodField()
 
     class Meta:
         model = Wall
@@ -179,9 +180,24 @@ class WallSerializer(serializers.ModelSerializer):
             "seal_points_total",
             "seal_points_checked",
             "findings_open",
+            "verdict",
             "updated_at",
         ]
         read_only_fields = ["id", "version", "updated_at"]
+
+    def get_verdict(self, wall) -> dict:
+        """The wall's state in the words of :mod:`qa.audit.verdicts`, with its coverage per face.
+
+        Worked out once for every wall of a list answer (one coverage query, cached audits).
+        """
+        from ..audit.verdicts import verdicts_for_walls
+
+        memo = self.context.setdefault("_verdicts", {})
+        if wall.pk not in memo:
+            many = getattr(self.parent, "instance", None)
+            walls = list(many) if many is not None and self.parent is not None else [wall]
+            memo.update(verdicts_for_walls([w for w in walls if w.pk not in memo] or [wall]))
+        return memo[wall.pk]
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)

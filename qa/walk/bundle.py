@@ -19,6 +19,8 @@ from django.utils import timezone
 
 from .. import audit, units
 from ..api.serializers import FindingSerializer
+from ..audit.fix_order import fix_steps
+from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
 from ..choices import Face, FindingStatus, GapKind, SealStatus, Trade
 from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
@@ -114,12 +116,54 @@ def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
     return _plain(out)
 
 
-def _audits(job: Job, walls: list[Wall]) -> dict:
-    """The last leak audit of each wall, slimmed for the phone (keyed by wall id)."""
+def _audits(job: Job, walls: list[Wall], member: Member) -> tuple[dict, dict, list]:
+    """The last leak audit of each wall slimmed for the phone, each wall's verdict, and the
+    fix-first list, all keyed by wall id.
+
+    The verdict (:func:`qa.audit.verdicts.verdict`) is what the desktop shows under the same word.
+    A crew member's fix-first steps are their own trade's only (step numbers stay the wall's).
+    """
     audits = audit.audits_for_walls(walls)
-    client_ids = dict(Finding.objects.filter(job=job).values_list("id", "client_id"))
-    client_ids = {k: str(v) for k, v in client_ids.items()}
-    return {str(k): _slim_audit(v, client_ids) for k, v in (audits or {}).items() if isinstance(v, dict)}
+    verdicts = verdicts_for_walls(walls, audits)
+    rows = Finding.objects.filter(job=job).values_list("id", "client_id", "trade", "status")
+    client_ids = {k: str(c) for k, c, _t, _s in rows}
+    trade_of = {k: t for k, _c, t, _s in rows}
+    slim = {str(k): _slim_audit(v, client_ids) for k, v in (audits or {}).items() if isinstance(v, dict)}
+    fix_first = []
+    for w in walls:
+        for fid, st in fix_steps(audits[w.pk]).items():
+            if member.is_crew and trade_of.get(fid) != member.trade:
+                continue
+            fix_first.append(
+                {
+                    "finding": client_ids.get(fid, str(fid)),
+                    "wall": w.pk,
+                    "step": st["step"],
+                    "in_order": st["buys"],
+                    "alone": st["alone"],
+                    "after": st["after"],
+                    "needed": st["needed"],
+                }
+            )
+        if member.is_crew:
+            a = slim.get(str(w.pk))
+            if a is not None:  # the walk lists a crew member's own items only
+                mine = {client_ids[f] for f, t in trade_of.items() if t == member.trade and f in client_ids}
+                a["rows"] = [r for r in a["rows"] if r["finding"] in mine]
+                a["needed"] = None if a.get("needed") is None else [f for f in a["needed"] if f in mine]
+    fix_first.sort(key=lambda r: (-(r["in_order"] or 0), -(r["alone"] or 0), r["wall"], r["step"]))
+    return slim, {str(k): _plain(v) for k, v in verdicts.items()}, fix_first
+
+
+def vocabulary() -> dict:
+    """The words of :mod:`qa.audit.verdicts` for the walk: wall states (with tone), ratings, gains."""
+    terms = {"states": STATES, "ratings": RATINGS, "gains": GAINS}
+    out = {
+        group: {k: {"word": t.word, "meaning": t.meaning, "tone": t.tone} for k, t in items.items()}
+        for group, items in terms.items()
+    }
+    out["needed"] = {"word": NEEDED.word, "meaning": NEEDED.meaning, "tone": NEEDED.tone}
+    return out
 
 
 def build_bundle(job: Job, member: Member) -> dict:
@@ -143,7 +187,7 @@ def build_bundle(job: Job, member: Member) -> dict:
     )
     if member.is_crew:
         photos = photos.filter(finding__trade=member.trade)
-    audits = _audits(job, walls)
+    audits, verdicts, fix_first = _audits(job, walls, member)
 
     body = {
         "format": BUNDLE_FORMAT,
@@ -178,7 +222,10 @@ def build_bundle(job: Job, member: Member) -> dict:
             "seal_status": [[v, label] for v, label in SealStatus.choices],
             "finding_status": [[v, label] for v, label in FindingStatus.choices],
         },
-        "cautions": {k: {"title": c.title, "text": c.text} for k, c in CAUTIONS.items()},
+        "cautions": {k: {"title": c.title, "text": c.text, "basis": c.basis} for k, c in CAUTIONS.items()},
+        "vocabulary": vocabulary(),
+        "verdicts": verdicts,
+        "fix_first": fix_first,
         "general_cautions": list(GENERAL_CAUTIONS),
         "wall_types": [
             {
