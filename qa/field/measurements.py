@@ -67,7 +67,10 @@ def clean_bands(bands: Any, source: str) -> dict[str, list[float | None]]:
         for need in ("l1", "l2", "t2"):
             if bands.get(need) is None:
                 raise FieldInputError(f"bands.{need}", "is required for measured levels")
-    return {k: _series(v, k) for k, v in bands.items() if v is not None}
+    out = {k: _series(v, k) for k, v in bands.items() if v is not None}
+    if "b2" in out and all(v is None for v in out["b2"]):
+        del out["b2"]  # no background measured: nothing to correct
+    return out
 
 
 def _arr(series: list | None) -> np.ndarray | None:
