@@ -183,7 +183,7 @@ def check_finite(x: Floats, bands: slice, rating: str) -> None:
     if ok.all():
         return
     rows, cols = np.nonzero(~ok)
-    col = int(cols.min())
+    col = int(np.min(cols))  # same as cols.min(); numpy 2.5 stubs checked as 3.11 lack its no-argument form
     band = float(BANDS[bands][col])
     value = float(sub[rows[cols == col][0], col])
     if np.isnan(value):
