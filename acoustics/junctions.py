@@ -52,9 +52,11 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .bands import BANDS, N_BANDS
 from .constants import C0, RHO0
@@ -90,7 +92,7 @@ class JunctionError(AcousticsError):
     """A junction or element parameter is outside what the method accepts (names the field and rule)."""
 
 
-def _pos(value: Any, name: str, unit: str) -> Any:
+def _pos(value: Any, name: str, unit: str) -> float | npt.NDArray[np.float64]:
     # Scalars take the fast path: the prediction validates a few hundred numbers per wall.
     if isinstance(value, (int, float)):
         if not (value > 0 and math.isfinite(value)):
@@ -102,7 +104,9 @@ def _pos(value: Any, name: str, unit: str) -> Any:
     return v
 
 
-def kij(kind: str, path: str, mass_ratio: float, f: Any = BANDS, *, f1: float = 125.0) -> np.ndarray:
+def kij(
+    kind: str, path: str, mass_ratio: float, f: npt.ArrayLike = BANDS, *, f1: float = 125.0
+) -> npt.NDArray[np.float64]:
     """Vibration reduction index K_ij of ISO 12354-1 Annex E, dB per band.
 
     Parameters
@@ -133,17 +137,17 @@ def kij(kind: str, path: str, mass_ratio: float, f: Any = BANDS, *, f1: float = 
     ratio = float(_pos(mass_ratio, "mass_ratio", "(m'_perp / m'_i)"))
     if path not in ("through", "corner"):
         raise JunctionError(f"path must be 'through' or 'corner', got {path!r}")
-    f = np.asarray(f, dtype=float)
-    m = np.log10(ratio)
-    one = np.ones_like(f)
-    lg_fk = np.log10(f / 500.0)
+    freq = np.asarray(f, dtype=np.float64)
+    m: float = np.log10(ratio)
+    one = np.ones_like(freq)
+    lg_fk = np.log10(freq / 500.0)
     through = path == "through"
     if kind == "rigid_cross":
         return one * (8.7 + 17.1 * m + 5.7 * m * m if through else 8.7 + 5.7 * m * m)
     if kind == "rigid_t":
         return one * (5.7 + 14.1 * m + 5.7 * m * m if through else 5.7 + 5.7 * m * m)
     if kind == "flexible":
-        d1 = np.where(f > f1, 10.0 * np.log10(f / f1), 0.0)
+        d1 = np.where(freq > f1, 10.0 * np.log10(freq / f1), 0.0)
         return 5.7 + 14.1 * m + 5.7 * m * m + 2 * d1 if through else 5.7 + 5.7 * m * m + d1
     if kind == "light_facade":
         return one * (max(5.0 + 10.0 * m, 5.0) if through else 10.0 + 10.0 * abs(m))
@@ -163,10 +167,10 @@ def kij_min(length: float, s_i: float, s_j: float) -> float:
     lf = float(_pos(length, "length", "m"))
     si = float(_pos(s_i, "s_i", "m^2"))
     sj = float(_pos(s_j, "s_j", "m^2"))
-    return 10.0 * np.log10(lf * (1.0 / si + 1.0 / sj))
+    return 10.0 * float(np.log10(lf * (1.0 / si + 1.0 / sj)))
 
 
-def lab_loss_factor(mass: float, eta_int: float, f: Any = BANDS) -> np.ndarray:
+def lab_loss_factor(mass: float, eta_int: float, f: npt.ArrayLike = BANDS) -> npt.NDArray[np.float64]:
     """Total loss factor of a heavy element in a laboratory, eta_int + m'/(485 sqrt f) (ISO 12354-1 C.2).
 
     Parameters
@@ -180,7 +184,7 @@ def lab_loss_factor(mass: float, eta_int: float, f: Any = BANDS) -> np.ndarray:
     return float(_pos(eta_int, "eta_int", "")) + m / (485.0 * np.sqrt(np.asarray(f, float)))
 
 
-def edge_absorption(pairs: Any) -> np.ndarray:
+def edge_absorption(pairs: Iterable[tuple[float, npt.ArrayLike]]) -> npt.NDArray[np.float64]:
     """Absorption coefficient alpha_k of one edge: sum_j sqrt(fc_j / 1000 Hz) 10^(-K_ij/10).
 
     Parameters
@@ -193,12 +197,12 @@ def edge_absorption(pairs: Any) -> np.ndarray:
     ----------
     .. [1] ISO 12354-1:2017 Annex C, Formula (C.5) (from memory; reproduces Table L.3).
     """
-    total: Any = 0.0
+    total: float | npt.NDArray[np.float64] = 0.0
     for fc_j, k in pairs:
         total = total + np.sqrt(float(_pos(fc_j, "fc", "Hz")) / F_REF) * 10.0 ** (
-            -np.asarray(k, float) / 10.0
+            -np.asarray(k, np.float64) / 10.0
         )
-    return np.asarray(total, dtype=float)
+    return np.asarray(total, dtype=np.float64)
 
 
 def situ_loss_factor(
@@ -206,13 +210,13 @@ def situ_loss_factor(
     area: float,
     fc: float,
     eta_int: float,
-    edges: Any,
-    f: Any = BANDS,
+    edges: Iterable[tuple[float, npt.ArrayLike]],
+    f: npt.ArrayLike = BANDS,
     *,
-    sigma: Any = 1.0,
+    sigma: npt.ArrayLike = 1.0,
     c0: float = C0,
     rho0: float = RHO0,
-) -> np.ndarray:
+) -> npt.NDArray[np.float64]:
     """In-situ total loss factor of a heavy element (ISO 12354-1:2017 Annex C, Formula C.4).
 
     Parameters
@@ -229,31 +233,35 @@ def situ_loss_factor(
     ndarray
         eta_tot = eta_int + 2 rho0 c0 sigma / (2 pi f m') + c0 sum_k l_k alpha_k / (pi^2 S sqrt(f fc)).
     """
-    f = np.asarray(f, float)
+    freq = np.asarray(f, np.float64)
     m = float(_pos(mass, "mass", "kg/m^2"))
     s = float(_pos(area, "area", "m^2"))
     fcv = float(_pos(fc, "fc", "Hz"))
-    perimeter: Any = 0.0
+    perimeter: float | npt.NDArray[np.float64] = 0.0
     for length, alpha in edges:
-        perimeter = perimeter + float(_pos(length, "edge length", "m")) * np.asarray(alpha, float)
-    radiation = 2.0 * rho0 * c0 * np.asarray(sigma, float) / (2.0 * np.pi * f * m)
-    return eta_int + radiation + c0 * perimeter / (np.pi**2 * s * np.sqrt(f * fcv))
+        perimeter = perimeter + float(_pos(length, "edge length", "m")) * np.asarray(alpha, np.float64)
+    radiation = 2.0 * rho0 * c0 * np.asarray(sigma, np.float64) / (2.0 * np.pi * freq * m)
+    return eta_int + radiation + c0 * perimeter / (np.pi**2 * s * np.sqrt(freq * fcv))
 
 
-def absorption_length(area: float, eta: Any, f: Any = BANDS, *, c0: float = C0) -> np.ndarray:
+def absorption_length(
+    area: float, eta: npt.ArrayLike, f: npt.ArrayLike = BANDS, *, c0: float = C0
+) -> npt.NDArray[np.float64]:
     """Equivalent absorption length a = 2.2 pi^2 S / (c0 Ts) sqrt(1000 Hz / f), m, with Ts = 2.2 / (f eta).
 
     References
     ----------
     .. [1] ISO 12354-1:2017 Formula (22) (from memory; reproduces Table L.4); ISO 10848-1 Formula (12).
     """
-    f = np.asarray(f, float)
+    freq = np.asarray(f, np.float64)
     s = float(_pos(area, "area", "m^2"))
-    ts = 2.2 / (f * _pos(eta, "eta (loss factor)", ""))
-    return 2.2 * np.pi**2 * s / (c0 * ts) * np.sqrt(F_REF / f)
+    ts = 2.2 / (freq * _pos(eta, "eta (loss factor)", ""))
+    return 2.2 * np.pi**2 * s / (c0 * ts) * np.sqrt(F_REF / freq)
 
 
-def velocity_level_difference(k: Any, length: float, a_i: Any, a_j: Any) -> np.ndarray:
+def velocity_level_difference(
+    k: npt.ArrayLike, length: float, a_i: npt.ArrayLike, a_j: npt.ArrayLike
+) -> npt.NDArray[np.float64]:
     """Direction-averaged velocity level difference Dv,ij,situ = K_ij - 10 lg(l_ij / sqrt(a_i a_j)) >= 0, dB.
 
     References
@@ -261,23 +269,27 @@ def velocity_level_difference(k: Any, length: float, a_i: Any, a_j: Any) -> np.n
     .. [1] ISO 12354-1:2017 Formula (21) (lower limit 0 dB from memory); ISO 10848-1 Formula (14).
     """
     lf = float(_pos(length, "length", "m"))
-    dv = np.asarray(k, float) - 10.0 * np.log10(lf / np.sqrt(np.asarray(a_i, float) * np.asarray(a_j, float)))
+    dv = np.asarray(k, np.float64) - 10.0 * np.log10(
+        lf / np.sqrt(np.asarray(a_i, np.float64) * np.asarray(a_j, np.float64))
+    )
     return np.maximum(dv, 0.0)
 
 
-def in_situ_index(r_lab: Any, eta_lab: Any, eta_situ: Any) -> np.ndarray:
+def in_situ_index(
+    r_lab: npt.ArrayLike, eta_lab: npt.ArrayLike, eta_situ: npt.ArrayLike
+) -> npt.NDArray[np.float64]:
     """In-situ index R_situ = R_lab - 10 lg(Ts,situ / Ts,lab) = R_lab + 10 lg(eta_situ / eta_lab), dB.
 
     References
     ----------
     .. [1] ISO 12354-1:2017 Formula (19) and Annex C (heavy, homogeneous elements only).
     """
-    return np.asarray(r_lab, float) + 10.0 * np.log10(
-        np.asarray(eta_situ, float) / np.asarray(eta_lab, float)
+    return np.asarray(r_lab, np.float64) + 10.0 * np.log10(
+        np.asarray(eta_situ, np.float64) / np.asarray(eta_lab, np.float64)
     )
 
 
-def _curve(values: list[float]) -> np.ndarray:
+def _curve(values: list[float]) -> npt.NDArray[np.float64]:
     arr = np.array(values, dtype=float)
     arr.setflags(write=False)
     assert arr.shape == (N_BANDS,)
@@ -291,7 +303,7 @@ def _curve(values: list[float]) -> np.ndarray:
 #: ``leaf_r`` / ``leaf_r_star`` the inner leaf of a double timber-frame wall (R, R*); ``dvn_wall_floor_ff``
 #: Dv,ij,n between the wall leaves across the floor junction, ``dvn_floor_wall`` Dv,ij,n floor to wall
 #: leaf (the Df path); ``wall_r`` and ``dvn_wall_wall`` a timber-frame gypsum-board wall junction (L.16).
-LIGHT_FRAME_DATA: dict[str, np.ndarray] = {
+LIGHT_FRAME_DATA: dict[str, npt.NDArray[np.float64]] = {
     "floor_r": _curve(
         [10.0, 12.7, 14.0, 15.0, 13.0, 14.0, 17.0, 20.0, 23.0, 25.0, 22.0]
         + [26.0, 28.0, 29.0, 30.0, 28.5, 27.0, 29.0, 36.0, 38.0, 41.0]
