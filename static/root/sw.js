@@ -1,13 +1,15 @@
 // Sealwalk service worker. One version constant; the app shell is precached from the hashed static
 // URLs named in the walk's shell page; pages are network-first with an offline fallback.
-const BUILD = "walk-2026-1";
+const BUILD = "walk-2026-2";
 // A deploy may register the worker as /sw.js?build=<id>; the id joins the version so caches follow it.
 const BUILD_ID = new URL(self.location.href).searchParams.get("build");
 const VERSION = BUILD_ID ? `${BUILD}+${BUILD_ID}` : BUILD;
 const PREFIX = "sealwalk-";
 const SHELL_CACHE = `${PREFIX}shell-${VERSION}`;
 const PAGES_CACHE = `${PREFIX}pages-${VERSION}`;
-const PHOTOS_CACHE = `${PREFIX}photos`; // kept across versions: thumbnails do not change
+// Kept across versions: photos do not change. The walk fills and bounds it (photocache.js); this
+// worker only reads it, so nothing lands there without the walk's size bookkeeping.
+const PHOTOS_CACHE = `${PREFIX}photos`;
 const SHELL_URL = "/walk/";
 
 async function precache() {
@@ -73,6 +75,11 @@ async function cacheFirst(request, cacheName) {
   return resp;
 }
 
+async function cachedPhoto(request) {
+  const hit = await (await caches.open(PHOTOS_CACHE)).match(request.url);
+  return hit || fetch(request);
+}
+
 self.addEventListener("fetch", (event) => {
   const { request } = event;
   if (request.method !== "GET") return;
@@ -82,8 +89,8 @@ self.addEventListener("fetch", (event) => {
     event.respondWith(networkFirstPage(request));
   } else if (url.pathname.startsWith("/static/") || url.pathname === "/manifest.webmanifest") {
     event.respondWith(cacheFirst(request, SHELL_CACHE));
-  } else if (/^\/jobs\/\d+\/photos\/[0-9a-f-]+\/thumb$/.test(url.pathname)) {
-    event.respondWith(cacheFirst(request, PHOTOS_CACHE));
+  } else if (/^\/jobs\/\d+\/photos\/[0-9a-f-]+\/(thumb|image)$/.test(url.pathname)) {
+    event.respondWith(cachedPhoto(request));
   }
   // /api/ is never cached here: the walk keeps its data in IndexedDB.
 });

@@ -14,6 +14,7 @@ const root = document.querySelector("[data-view]");
 const bar = document.querySelector("[data-syncbar]");
 const titleEl = document.querySelector("[data-title]");
 const backEl = document.querySelector("[data-back]");
+const dockEl = document.querySelector("[data-dock]");
 const ui = { level: null, search: "" };
 let lastRoute = "";
 let current = null;
@@ -42,6 +43,7 @@ const VIEWS = {
   finding: findingView, conflicts: conflictsView,
 };
 const FORMS = new Set(["new", "edit"]);
+const INLINE_BAR = new Set(["new", "edit", "finding"]);
 
 export function go(hash) {
   if (location.hash === hash) render(true);
@@ -55,11 +57,12 @@ async function render(routeChanged) {
   if (route.job && !state && route.name !== "jobs") {
     route.name = "jobs";
   }
-  const ctx = { route, state, ui, go, setTitle, back: setBack, sync };
+  const ctx = { route, state, ui, go, setTitle, back: setBack, sync, dock: setDock };
   if (routeChanged || !FORMS.has(route.name)) {
     const active = document.activeElement;
     const keep = active && active.dataset && active.dataset.keepFocus;
     const caret = keep && active.selectionStart;
+    setDock(null);
     await VIEWS[route.name](root, ctx);
     if (routeChanged) {
       window.scrollTo(0, 0);
@@ -73,6 +76,9 @@ async function render(routeChanged) {
     }
   }
   current = route;
+  // Screens with a form keep the sync bar at the end of the page: it never sits over a field.
+  if (INLINE_BAR.has(route.name)) document.body.dataset.bar = "inline";
+  else delete document.body.dataset.bar;
   renderSyncBar(bar, ctx);
   document.body.dataset.ready = "1";
 }
@@ -80,6 +86,13 @@ async function render(routeChanged) {
 function setTitle(text) {
   titleEl.textContent = text;
   document.title = `${text} · Sealwalk walk`;
+}
+
+// The dock holds the screen's one big action (the wall's "next unchecked"), just above the sync bar.
+function setDock(node) {
+  if (!dockEl) return;
+  dockEl.replaceChildren(...(node ? [node] : []));
+  dockEl.hidden = !node;
 }
 
 function setBack(hash, label) {
@@ -106,6 +119,43 @@ window.addEventListener("hashchange", () => {
 });
 window.addEventListener("online", () => render(false));
 window.addEventListener("offline", () => render(false));
+
+// The sync bar and the dock are fixed to the bottom of the screen. The page keeps room below its
+// content for both, and while the user types (a field has focus, or the keyboard is up) they leave
+// the bottom of the screen, so they never cover the field being filled in.
+const FIELD = "input:not([type=radio]):not([type=checkbox]):not([type=file]):not([type=button]):not([type=submit]), select, textarea";
+function typing(on) {
+  if (on) document.body.dataset.typing = "1";
+  else delete document.body.dataset.typing;
+}
+let leaving = null;
+document.addEventListener("focusin", (e) => {
+  clearTimeout(leaving);
+  typing(e.target.matches && e.target.matches(FIELD));
+});
+// The bar comes back a moment after the field loses focus: a tap that moved the focus (say, on "Save")
+// must land where the finger was, not on a bar that slid in between press and release.
+document.addEventListener("focusout", () => {
+  clearTimeout(leaving);
+  leaving = setTimeout(() => {
+    const a = document.activeElement;
+    const keyboard = window.visualViewport && window.visualViewport.height < window.innerHeight - 120;
+    typing((a && a.matches && a.matches(FIELD)) || keyboard);
+  }, 400);
+});
+window.visualViewport?.addEventListener("resize", () => {
+  if (window.visualViewport.height < window.innerHeight - 120) typing(true);
+});
+function bottomSpace() {
+  const used = (bar.offsetHeight || 0) + (dockEl && !dockEl.hidden ? dockEl.offsetHeight : 0);
+  document.body.style.setProperty("--bottom-space", `${used + 16}px`);
+  document.body.style.setProperty("--bar-h", `${bar.offsetHeight || 0}px`);
+}
+if (window.ResizeObserver) {
+  const watchSize = new ResizeObserver(bottomSpace);
+  watchSize.observe(bar);
+  if (dockEl) watchSize.observe(dockEl);
+}
 
 sync.start();
 lastRoute = location.hash;

@@ -4,6 +4,7 @@ import * as db from "./db.js";
 import { request, HttpError } from "./net.js";
 import { changed } from "./store.js";
 import { uploadAll } from "./uploads.js";
+import { cacheThumbs } from "./photocache.js";
 
 const BATCH = 200;
 let running = null;
@@ -48,6 +49,28 @@ export async function fetchBundle(job, onBytes = () => {}) {
   return bundle;
 }
 
+/** What an operation was about: a seal point (a tick, a new defect at it) or a finding (by client id). */
+export function targetOf(op) {
+  const p = op.payload || {};
+  if (op.kind === "seal_point.status") return { point: p.seal_point };
+  if (op.kind === "finding.create") return { point: p.seal_point, wall: p.wall, finding: p.client_id };
+  if (op.kind === "conflict.resolve") return { conflict: p.conflict };
+  return { finding: p.finding };
+}
+
+/** Forget a problem the user has read (by the operation that caused it). */
+export async function dismissProblem(job, opId) {
+  const problems = await db.meta(`problems:${job}`, []);
+  await db.setMeta(`problems:${job}`, problems.filter((p) => p.op_id !== opId));
+  changed({ job });
+}
+
+/** Taking a job offline is a sync when nothing waits to be sent: the bar says so. */
+export async function markSynced(job) {
+  const waiting = (await db.byJob("outbox", job)).some((op) => op.state === "pending");
+  if (!waiting) await db.setMeta(`last_sync:${job}`, new Date().toISOString());
+}
+
 async function sendOps(job) {
   const pending = (await db.byJob("outbox", job)).filter((op) => op.state === "pending").sort((a, b) => a.seq - b.seq);
   const problems = await db.meta(`problems:${job}`, []);
@@ -61,7 +84,11 @@ async function sendOps(job) {
     const updated = batch.map((op) => ({ ...op, state: "done", result: answers.get(op.op_id) || null }));
     for (const op of updated) {
       if (op.result && op.result.status === "rejected") {
-        problems.push({ kind: op.kind, errors: op.result.errors, at: new Date().toISOString() });
+        // Kept with what it was about, so the screen can show it beside the control that made it.
+        problems.push({
+          op_id: op.op_id, kind: op.kind, errors: op.result.errors, payload: op.payload, at: new Date().toISOString(),
+          target: targetOf(op),
+        });
       }
     }
     await db.putMany("outbox", updated);
@@ -91,6 +118,8 @@ async function run(job) {
     if (photo.state === "done" && onServer.has(photo.id)) await db.del("photos", photo.id);
   }
   await db.setMeta(`last_sync:${job}`, new Date().toISOString());
+  // Thumbnails of photos new since the last sync, for offline use; a failure here is not a failed sync.
+  cacheThumbs(job, bundle.photos).catch(() => {});
 }
 
 /** Sync one job now (joins a sync already running). Never throws; schedules a retry on failure. */

@@ -1,6 +1,7 @@
 // The always-visible sync bar: changes and photos waiting, last sync, conflicts, upload progress.
 import { h, replace, fmtTime } from "./dom.js";
 import { currentProgress, onProgress } from "./uploads.js";
+import { errorText } from "./views/problems.js";
 
 let lastCtx = null;
 
@@ -37,15 +38,17 @@ export function renderSyncBar(bar, ctx) {
   const photos = state.photos.filter((p) => p.state !== "done").length;
   const conflicts = state.conflicts.filter((c) => !c.resolution).length;
   const s = sync.status;
+  // One line at 360 px: what waits (or "all sent"), when the last sync was, and the button.
+  const waits = [changes ? plural(changes, "change", "changes") : null, photos ? plural(photos, "photo", "photos") : null]
+    .filter(Boolean).join(" · ");
   const line = h("div", { class: "sync-line" },
     conn,
-    h("span", { class: changes ? "count wait" : "count", "data-changes-waiting": changes },
-      plural(changes, "change", "changes"), " waiting"),
-    h("span", { class: photos ? "count wait" : "count", "data-photos-waiting": photos },
-      plural(photos, "photo", "photos"), " waiting"),
+    h("span", { class: changes || photos ? "count wait" : "count", "data-changes-waiting": changes, "data-photos-waiting": photos },
+      waits ? `${waits} waiting` : "All sent"),
     conflicts ? h("a", { class: "count conflict", href: `#/j/${state.job.id}/conflicts`, "data-conflicts": conflicts },
       plural(conflicts, "conflict", "conflicts")) : null,
-    h("span", { class: "last", "data-last-sync": state.lastSync || "" }, "Last sync ", fmtTime(state.lastSync)),
+    h("span", { class: "last", "data-last-sync": state.lastSync || "" },
+      state.lastSync ? `synced ${fmtTime(state.lastSync)}` : "not synced yet"),
     h("button", {
       type: "button", class: "sync-now", "data-sync-now": "", disabled: !online || s.state === "syncing",
       onclick: () => sync.syncNow(state.job.id),
@@ -55,8 +58,8 @@ export function renderSyncBar(bar, ctx) {
   if (state.problems.length) {
     extra.push(h("details", { class: "sync-problems" },
       h("summary", {}, plural(state.problems.length, "change was", "changes were"), " not accepted"),
-      h("ul", {}, state.problems.map((p) => h("li", {}, `${p.kind}: `,
-        Object.entries(p.errors || {}).map(([k, v]) => `${k} ${[].concat(v).join(", ")}`).join("; "))))));
+      h("ul", {}, state.problems.map((p) => h("li", {}, `${p.kind}: `, errorText(p.errors)))),
+      h("p", {}, "Each one is also shown beside what you changed.")));
   }
   replace(bar, line, progressRows(), extra);
 }

@@ -2,6 +2,8 @@
 // Offline, or with changes the server has not rated yet, it is the last known audit, marked as such.
 import { h } from "../dom.js";
 
+const opened = new Set(); // walls whose audit panel the user opened
+
 export function auditPanel(state, wall, findings) {
   const audit = state.audits && state.audits[String(wall.id)];
   if (!audit) return null;
@@ -24,8 +26,11 @@ export function auditPanel(state, wall, findings) {
     return h("li", {}, label(cid), gain != null ? h("span", { class: "gain" }, ` +${gain} alone`) : null,
       after != null ? h("span", { class: "after" }, ` → ${after}`) : null);
   });
-  return h("section", { class: `audit${stale ? " stale" : ""}`, "aria-labelledby": "audit-h", "data-audit": stale ? "stale" : "current" },
-    h("h2", { id: "audit-h" }, `${name} leak audit`),
+  const open = opened.has(wall.id);
+  const summary = audit.error ? `${name} leak audit`
+    : `${name} leak audit · as found ${audit.as_found ?? "—"} · target ${audit.target ?? "none"}`;
+  const panel = h("details", { class: `audit${stale ? " stale" : ""}`, open, "data-audit": stale ? "stale" : "current" },
+    h("summary", { id: "audit-h" }, summary, stale ? h("span", { class: "chip info" }, "last known") : null),
     stale ? h("p", { class: "stale-note", "data-audit-stale": "" },
       navigator.onLine ? "Last known audit: it does not include changes made on this phone yet."
         : "Last known audit (out of date while offline).") : null,
@@ -36,6 +41,9 @@ export function auditPanel(state, wall, findings) {
       h("p", {}, `Not in this audit (${missing.length}):`),
       h("ul", {}, missing.map((f) => h("li", {}, kindLabel(state, f.kind), f.note ? ` — ${f.note}` : "")))) : null,
     h("p", { class: "basis" }, "Laboratory-type estimate from the recorded gaps, not a field test."));
+  // The screen is redrawn after every tick: keep the panel as the user left it.
+  panel.addEventListener("toggle", () => (panel.open ? opened.add(wall.id) : opened.delete(wall.id)));
+  return panel;
 }
 
 export function kindLabel(state, kind) {
