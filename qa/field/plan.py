@@ -12,6 +12,7 @@ import csv
 import io
 from typing import Any
 
+import numpy as np
 from django.db.models import Count, Q
 
 from ..models import FieldTest, Finding, Wall
@@ -115,3 +116,55 @@ def _cell(row: dict, key: str) -> Any:
     if isinstance(value, str) and value[:1] in ("=", "+", "-", "@"):
         return "'" + value  # a spreadsheet must not run a cell as a formula
     return value
+
+
+#: Measured this far below predicted (dB) marks a wall to look at: about 1.5 times the ~2 dB standard
+#: deviation ISO 12354-1 gives for homogeneous buildings (from memory); common practice, no source.
+FAR_BELOW_DB = 3
+LOOK_FOR = {
+    "wall": "the wall itself: board layers, fastening, cavity fill and stud type against the design",
+    "findings": "seals the walk recorded: perimeter joints, boxes and penetrations, door seals",
+    "floor": "the floor junction: a topping or subfloor running under the wall, a continuous slab",
+    "ceiling": "the ceiling junction: a ceiling or joist space running over the wall",
+    "end_a": "the side-wall junction at end A: a continuous leaf or an unsealed corner",
+    "end_b": "the side-wall junction at end B: a continuous leaf or an unsealed corner",
+}
+
+
+def tested_summary(job) -> dict[str, Any]:
+    """Over the job's field tests: measured minus predicted now (mean, spread) and walls far below.
+
+    Each test is compared in the descriptor of its wall's field target (ASTC when none), against the
+    prediction of its room pair (or the wall's deciding pair).
+    """
+    from .presentation import compare, pair_for
+
+    tests = list(
+        FieldTest.objects.filter(wall__job=job, wall__removed=False).select_related("wall__wall_type")
+    )
+    walls = {t.wall_id: t.wall for t in tests}
+    fields = field_for_walls(list(walls.values()), job.building_kind)
+    points, far = [], []
+    for t in tests:
+        pair = pair_for(fields[t.wall_id], t)
+        target = pair["target"] if pair else None
+        descriptor = DESCRIPTOR_NAMES[target["descriptor"] if target else "astc"]
+        rows = {r["name"]: r for r in compare(t, pair)}
+        row = rows.get(descriptor) or next(iter(rows.values()), None)
+        if row is None or row["difference"] is None:
+            continue
+        point = {"wall": t.wall.tag, "wall_id": t.wall_id, "test": t.pk, **row}
+        points.append(point)
+        if row["difference"] <= -FAR_BELOW_DB:
+            share = pair["states"]["now"]["share_by_route"]
+            top = max(share, key=share.get)
+            far.append({**point, "look_for": LOOK_FOR.get(top, top)})
+    diffs = np.array([p["difference"] for p in points], float)
+    return {
+        "points": points,
+        "count": len(points),
+        "mean": None if not len(diffs) else round(float(diffs.mean()), 1),
+        "spread": None if len(diffs) < 2 else round(float(diffs.std(ddof=1)), 1),
+        "far_below": far,
+        "far_db": FAR_BELOW_DB,
+    }

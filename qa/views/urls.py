@@ -5,7 +5,7 @@ from __future__ import annotations
 from django.urls import path
 
 from .. import converters  # noqa: F401  (registers <id:...>)
-from . import crew, report
+from . import crew, field, report
 
 urlpatterns: list = [
     path("jobs/<id:job_pk>/crew/", crew.crew_page, name="crew"),
@@ -16,4 +16,5 @@ urlpatterns: list = [
     path("jobs/<id:job_pk>/report/handover.pdf", report.report_pdf, name="report-pdf"),
     path("jobs/<id:job_pk>/report/punch-list.csv", report.punch_list_csv, name="report-csv"),
     path("jobs/<id:job_pk>/report/sign/", report.sign_off, name="report-sign"),
+    path("jobs/<id:job_pk>/test-plan/", field.test_plan_page, name="test-plan"),
 ]

@@ -1,0 +1,152 @@
+"""Page contexts of the field rating: the wall's panel (predicted, and measured beside it) and its chart.
+
+The chart reuses the audit's chart geometry (:mod:`qa.audit.chart`): the predicted apparent
+transmission loss (R' = ATL) now and as designed, and each test's measured R' or ATL, per band.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from django.utils.safestring import SafeString
+
+from ..audit import chart as ch
+from ..models import FieldTest
+from .choices import BuildingKind, JunctionPosition
+from .prediction import DESCRIPTOR_NAMES, field_prediction, headline
+
+ROUTE_WORDS = {
+    "wall": "through the wall as designed",
+    "findings": "through the walk's findings",
+    **{p.value: f"flanking at the {p.label.lower()}" for p in JunctionPosition},
+}
+STATE_WORDS = {"designed": "As designed", "walked": "As walked", "now": "Now"}
+TEST_COLOURS = ("#0b6e69", "#6b4fa0", "#8a5a00")
+
+
+def _single(d: dict | None, key: str) -> Any:
+    if d is None:
+        return None
+    v = d.get(key)
+    return v.get("value") if isinstance(v, dict) else v
+
+
+def _rw_text(d: dict, key: str) -> str:
+    v = d.get(key) or {}
+    if v.get("value") is None:
+        return "—"
+    return f"{v['value']} ({v['c']:+d}; {v['ctr']:+d})"
+
+
+def compare(test: FieldTest, pair: dict | None) -> list[dict]:
+    """Rows of measured beside predicted now, one per descriptor the test rated."""
+    rows = []
+    now = pair["states"]["now"] if pair else None
+    for key, name in DESCRIPTOR_NAMES.items():
+        measured = _single(test.results, key)
+        if measured is None:
+            continue
+        predicted = _single(now, key)
+        rows.append(
+            {
+                "name": name,
+                "measured": measured,
+                "predicted": predicted,
+                "difference": None if predicted is None else measured - predicted,
+            }
+        )
+    return rows
+
+
+def pair_for(result: dict, test: FieldTest) -> dict | None:
+    """The predicted pair a test is compared with: its room pair's, else the wall's deciding pair."""
+    for p in result.get("pairs") or []:
+        if test.room_pair_id is not None and p["room_pair"] == test.room_pair_id:
+            return p
+    return headline(result)
+
+
+def field_chart(pair: dict, tests: list[FieldTest]) -> SafeString:
+    """Inline SVG: predicted R' now and as designed, and each test's measured R' (or ATL)."""
+    series = [
+        (
+            "designed",
+            "predicted as designed",
+            pair["states"]["designed"]["bands"]["r_prime"],
+            "#1f3a3d",
+            2.0,
+            "6 4",
+        ),
+        ("now", "predicted now", pair["states"]["now"]["bands"]["r_prime"], "#b3261e", 2.6, ""),
+    ]
+    for k, t in enumerate(tests[: len(TEST_COLOURS)]):
+        bands = t.results.get("bands", {})
+        measured = (
+            bands.get("r_prime") if any(v is not None for v in bands.get("r_prime", [])) else bands.get("atl")
+        )
+        if measured:
+            label = f"measured {t.tested_on:%Y-%m-%d} ({t.standard})"
+            series.append((f"test-{t.pk}", label, measured, TEST_COLOURS[k], 2.2, "2 3"))
+    vals = [v for s in series for v in s[2] if v is not None and math.isfinite(v)]
+    if not vals:
+        return ch.svg(None)
+    y_min = 10 * math.floor(min(min(vals), 10) / 10)
+    y_max = 10 * math.ceil(max(vals) / 10)
+
+    def y_of(val: float) -> float:
+        return ch.TOP + (ch.H - ch.TOP - ch.BOTTOM) * (y_max - val) / (y_max - y_min)
+
+    chart = ch.Chart(
+        y_min,
+        y_max,
+        [(round(y_of(t), 1), f"{t}") for t in range(int(y_min), int(y_max) + 1, 10)],
+        [(round(ch._x(ch.BANDS.index(f)), 1), t) for f, t in ch.TICKS.items()],
+    )
+    for key, label, values, stroke, width, dash in series:
+        chart.series.append(ch.Series(key, label, ch._segments(values, y_of), stroke, width, dash))
+    return ch.svg(chart, title="Apparent transmission loss by frequency: predicted and measured")
+
+
+def wall_field_context(wall, job) -> dict[str, Any]:
+    """Everything the wall page's field panel shows."""
+    wall.job = job
+    result = field_prediction(wall)
+    head = headline(result)
+    tests = list(FieldTest.objects.filter(wall=wall).order_by("-tested_on", "-id"))
+    ctx: dict[str, Any] = {
+        "result": result,
+        "head": head,
+        "building_kind": BuildingKind(job.building_kind).label,
+        "tests": [{"t": t, "rows": compare(t, pair_for(result, t))} for t in tests],
+    }
+    if head is None:
+        return ctx
+    target = head["target"]
+    key = target["descriptor"] if target else "astc"
+    ctx.update(
+        {
+            "descriptor": DESCRIPTOR_NAMES[key],
+            "states": [
+                {
+                    "word": STATE_WORDS[s],
+                    "value": _single(head["states"][s], key),
+                    "margin": head["states"][s]["margin"],
+                }
+                for s in ("designed", "walked", "now")
+            ],
+            "now": {
+                "r_prime_w": _rw_text(head["states"]["now"], "r_prime_w"),
+                "dnt_w": _rw_text(head["states"]["now"], "dnt_w"),
+                "astc": head["states"]["now"]["astc"],
+                "nnic": head["states"]["now"]["nnic"],
+            },
+            "routes": [
+                {"word": ROUTE_WORDS.get(r, r), "share": round(100 * v), "bar": round(100 * v, 1)}
+                for r, v in sorted(head["states"]["now"]["share_by_route"].items(), key=lambda kv: -kv[1])
+                if v >= 0.005
+            ],
+            "chart": field_chart(head, tests),
+        }
+    )
+    return ctx

@@ -1,0 +1,31 @@
+"""The printable field-test plan of a job: room pairs to test first, and how tested walls compare."""
+
+from __future__ import annotations
+
+from django.contrib.auth.decorators import login_required
+from django.shortcuts import render
+from django.views.decorators.http import require_safe
+
+from ..access import job_for
+from ..field.choices import BuildingKind
+from ..field.plan import test_plan, tested_summary
+
+
+@require_safe
+@login_required
+def test_plan_page(request, job_pk):
+    """Walls ranked by predicted field margin, then by what the walk found; every member may read it."""
+    job, member = job_for(request.user, job_pk)
+    plan = test_plan(job)
+    return render(
+        request,
+        "qa/field/test_plan.html",
+        {
+            "job": job,
+            "member": member,
+            "plan": plan,
+            "rows": plan["rows"],
+            "tested": tested_summary(job),
+            "building_kind": BuildingKind(job.building_kind).label,
+        },
+    )

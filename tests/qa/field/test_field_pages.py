@@ -1,0 +1,76 @@
+"""Field-rating pages: the wall page's field panel (predicted, margin, caution; measured beside
+predicted once a test exists) and the printable test-plan page linked from the job page."""
+
+from __future__ import annotations
+
+import pytest
+from django.test import Client
+
+from qa.field.measurements import compute_results
+from qa.models import FieldTest
+from tests.conftest import FLAT_50
+
+pytestmark = pytest.mark.django_db
+CAUTION_WORDS = [
+    "a prediction is not a field test",
+    "ASTM E336 or ISO 16283-1 by qualified testers",
+    "authority having jurisdiction govern",
+]
+
+
+def client_for(user=None) -> Client:
+    c = Client()
+    if user is not None:
+        c.force_login(user)
+    return c
+
+
+def report_test(wall, astc: int, on="2026-11-20") -> FieldTest:
+    """A test report whose ATL and NNR are FLAT_50 moved to rate ``astc`` (E413: the curve rates STC 50)."""
+    bands = {"atl": [v + astc - 50 for v in FLAT_50], "nnr": [v + astc - 50 for v in FLAT_50]}
+    return FieldTest.objects.create(
+        wall=wall,
+        tested_on=on,
+        tester="Field lab (fictional)",
+        standard="ASTM E336",
+        source="report",
+        bands=bands,
+        results=compute_results("report", bands),
+    )
+
+
+def test_wall_page_shows_the_prediction_margin_and_caution(world):
+    r = client_for(world.owner).get(f"/jobs/{world.job.id}/walls/{world.wall.id}/")
+    assert r.status_code == 200
+    html = r.content.decode()
+    assert "Field rating (predicted)" in html and "data-field-rating" in html
+    assert "Field target" in html and "ASTC 45" in html and "margin" in html
+    for words in CAUTION_WORDS:
+        assert words.lower() in html.lower(), words
+    assert "Measured beside predicted" not in html
+
+
+def test_wall_page_shows_measured_beside_predicted(world):
+    test = report_test(world.wall, 40)
+    assert test.results["astc"] == 40
+    html = client_for(world.electrician).get(f"/jobs/{world.job.id}/walls/{world.wall.id}/").content.decode()
+    assert "Measured beside predicted" in html and f'data-field-test="{test.pk}"' in html
+    assert 'data-series="now"' in html and f'data-series="test-{test.pk}"' in html  # the chart
+
+
+def test_test_plan_page_for_every_member_and_404_for_outsiders(world):
+    report_test(world.wall, 38)
+    for user in (world.inspector, world.electrician, world.owner):
+        r = client_for(user).get(f"/jobs/{world.job.id}/test-plan/")
+        assert r.status_code == 200
+        html = r.content.decode()
+        assert "data-test-plan" in html and world.wall.tag in html and "Download CSV" in html
+        assert "data-far-below" in html  # ASTC 38 measured against a prediction in the mid 40s
+    assert client_for(world.outsider).get(f"/jobs/{world.job.id}/test-plan/").status_code == 404
+    assert client_for().get(f"/jobs/{world.job.id}/test-plan/").status_code == 302
+    assert client_for(world.inspector).post(f"/jobs/{world.job.id}/test-plan/").status_code == 405
+
+
+def test_job_page_links_the_test_plan(world):
+    html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
+    assert f"/jobs/{world.job.id}/test-plan/" in html
