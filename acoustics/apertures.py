@@ -35,6 +35,7 @@ from __future__ import annotations
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 from scipy.special import j1, struve
 
 from .constants import C0, EULER_GAMMA, GAMMA, MU, P0, PRANDTL, RHO0
@@ -55,17 +56,26 @@ __all__ = [
     "hole_diffuse_factor",
 ]
 
-Matrix = tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]
+Floats = npt.NDArray[np.float64]
+Complexes = npt.NDArray[np.complexfloating[Any, Any]]
+#: Chain matrix (T11, T12, T21, T22), each complex per frequency.
+Matrix = tuple[Complexes, Complexes, Complexes, Complexes]
 
 
-def slit_end_correction(K: Any) -> np.ndarray:
+def slit_end_correction(K: npt.ArrayLike) -> Floats:
     """End correction factor e = (ln(8/K) - gamma) / pi of a slit, K = k w (Hopkins Eq. 4.100)."""
-    return (np.log(8.0 / np.asarray(K, dtype=float)) - EULER_GAMMA) / np.pi
+    return (np.log(8.0 / np.asarray(K, dtype=np.float64)) - EULER_GAMMA) / np.pi
 
 
 def gomperts_slit_tau(
-    f: Any, width: float, depth: float, *, incidence: str = "diffuse", edge: bool = False, c0: float = C0
-) -> np.ndarray:
+    f: npt.ArrayLike,
+    width: float,
+    depth: float,
+    *,
+    incidence: str = "diffuse",
+    edge: bool = False,
+    c0: float = C0,
+) -> Floats:
     """Transmission coefficient of a long straight slit (Gomperts, as given by Hopkins Eq. 4.99).
 
     Parameters
@@ -100,16 +110,16 @@ def gomperts_slit_tau(
     """
     m = {"diffuse": 8.0, "normal": 4.0}[incidence]
     n = 0.5 if edge else 1.0
-    K = 2.0 * np.pi * np.asarray(f, dtype=float) / c0 * width
+    K = 2.0 * np.pi * np.asarray(f, dtype=np.float64) / c0 * width
     e = slit_end_correction(K)
-    ce = np.cos(K * e)
+    ce: Floats = np.cos(K * e)
     kx = K * (depth / width)
     a = kx + 2.0 * K * e
     den = 2.0 * n**2 * (np.sin(a) ** 2 + K**2 / (2.0 * n**2) * ce**2 * (1.0 + np.cos(kx) * np.cos(a)))
     return m * K * ce**4 / den
 
 
-def slit_resonances(width: float, depth: float, orders: int = 3, *, c0: float = C0) -> np.ndarray:
+def slit_resonances(width: float, depth: float, orders: int = 3, *, c0: float = C0) -> Floats:
     """Resonance frequencies of a slit, d + 2 e w = z lambda / 2 (Hopkins Eq. 4.101), Hz.
 
     Solved by fixed-point iteration f <- z c0 / (2 (d + 2 e(f) w)).
@@ -129,16 +139,19 @@ def slit_resonances(width: float, depth: float, orders: int = 3, *, c0: float = 
     return out
 
 
-def piston_impedance(ka: Any) -> np.ndarray:
+def piston_impedance(ka: npt.ArrayLike) -> Complexes:
     """Normalised radiation impedance R0 + j X0 of a baffled circular piston, x = 2 k a.
 
     R0 = 1 - 2 J1(x)/x, X0 = 2 H1(x)/x (J1 Bessel, H1 Struve) [1]_ Eq. 4.102.
     """
-    x = 2.0 * np.asarray(ka, dtype=float)
-    return (1.0 - 2.0 * j1(x) / x) + 1j * (2.0 * struve(1, x) / x)
+    x = 2.0 * np.asarray(ka, dtype=np.float64)
+    # scipy.special is untyped: name the real and imaginary parts' type here.
+    r0: Floats = 1.0 - 2.0 * j1(x) / x
+    x0: Floats = 2.0 * struve(1, x) / x
+    return r0 + 1j * x0
 
 
-def wilson_soroka_tau(f: Any, radius: float, depth: float, *, c0: float = C0) -> np.ndarray:
+def wilson_soroka_tau(f: npt.ArrayLike, radius: float, depth: float, *, c0: float = C0) -> Floats:
     """Normal-incidence transmission coefficient of a circular hole (Wilson-Soroka, Hopkins Eq. 4.102).
 
     Parameters
@@ -154,26 +167,26 @@ def wilson_soroka_tau(f: Any, radius: float, depth: float, *, c0: float = C0) ->
         tau referred to pi a^2: 4 R0 / (4 R0^2 [cos kd - X0 sin kd]^2
         + [(R0^2 - X0^2 + 1) sin kd + 2 X0 cos kd]^2).
     """
-    k = 2.0 * np.pi * np.asarray(f, dtype=float) / c0
+    k = 2.0 * np.pi * np.asarray(f, dtype=np.float64) / c0
     z = piston_impedance(k * radius)
     r0, x0 = z.real, z.imag
     kd = k * depth
-    den = (
+    den: Floats = (
         4.0 * r0**2 * (np.cos(kd) - x0 * np.sin(kd)) ** 2
         + ((r0**2 - x0**2 + 1.0) * np.sin(kd) + 2.0 * x0 * np.cos(kd)) ** 2
     )
     return 4.0 * r0 / den
 
 
-def strip_impedance(K: Any) -> np.ndarray:
+def strip_impedance(K: npt.ArrayLike) -> Complexes:
     """Normalised radiation impedance of a baffled strip mouth per unit length, K/2 + j K e (K = k w)."""
-    K = np.asarray(K, dtype=float)
-    return K / 2.0 + 1j * K * slit_end_correction(K)
+    kw = np.asarray(K, dtype=np.float64)
+    return kw / 2.0 + 1j * kw * slit_end_correction(kw)
 
 
 def delany_bazley(
-    f: Any, flow_resistivity: float, *, rho0: float = RHO0, c0: float = C0
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    f: npt.ArrayLike, flow_resistivity: float, *, rho0: float = RHO0, c0: float = C0
+) -> tuple[Complexes, Complexes, Floats]:
     """Equivalent-fluid wavenumber and normalised impedance of a fibrous fill (Delany-Bazley).
 
     Parameters
@@ -197,15 +210,17 @@ def delany_bazley(
     zeta = 1 + 0.0571 X^-0.754 - j 0.087 X^-0.732,
     k_c = (omega/c0)(1 + 0.0978 X^-0.700 - j 0.189 X^-0.595) [3]_.
     """
-    f = np.asarray(f, dtype=float)
-    X = rho0 * f / flow_resistivity
-    zeta = 1.0 + 0.0571 * X**-0.754 - 1j * 0.087 * X**-0.732
-    kc = 2.0 * np.pi * f / c0 * (1.0 + 0.0978 * X**-0.700 - 1j * 0.189 * X**-0.595)
+    freq = np.asarray(f, dtype=np.float64)
+    X = rho0 * freq / flow_resistivity
+    zeta: Complexes = 1.0 + 0.0571 * X**-0.754 - 1j * 0.087 * X**-0.732
+    # k_c / k0 named and typed: numpy's stubs lose the complex dtype of a real-minus-imaginary sum.
+    kc_ratio: Complexes = 1.0 + 0.0978 * X**-0.700 - 1j * 0.189 * X**-0.595
+    kc = 2.0 * np.pi * freq / c0 * kc_ratio
     return kc, zeta, X
 
 
 def slit_viscothermal(
-    f: Any,
+    f: npt.ArrayLike,
     width: float,
     *,
     rho0: float = RHO0,
@@ -214,7 +229,7 @@ def slit_viscothermal(
     prandtl: float = PRANDTL,
     gamma: float = GAMMA,
     p0: float = P0,
-) -> tuple[np.ndarray, np.ndarray]:
+) -> tuple[Complexes, Complexes]:
     """Wavenumber and normalised impedance of air in a narrow slit with visco-thermal losses.
 
     Notes
@@ -224,7 +239,7 @@ def slit_viscothermal(
     K_eff = gamma P0 / (1 + (gamma - 1) tanh(lambda_t)/lambda_t),
     k_c = omega sqrt(rho_eff / K_eff) with Im k_c < 0, zeta = sqrt(rho_eff K_eff) / (rho0 c0) [5]_.
     """
-    omega = 2.0 * np.pi * np.asarray(f, dtype=float)
+    omega = 2.0 * np.pi * np.asarray(f, dtype=np.float64)
     b = width / 2.0
     lv = b * np.sqrt(1j * omega * rho0 / mu)
     lt = lv * np.sqrt(prandtl)
@@ -237,16 +252,17 @@ def slit_viscothermal(
     return kc, zeta
 
 
-def channel_matrix(kc: Any, zeta: Any, length: float) -> Matrix:
+def channel_matrix(kc: npt.ArrayLike, zeta: npt.ArrayLike, length: float) -> Matrix:
     """Chain matrix of a uniform channel section (normalised impedances)."""
     kl = np.asarray(kc) * length
+    z = np.asarray(zeta)
     c, s = np.cos(kl), np.sin(kl)
-    return c, 1j * zeta * s, 1j * s / zeta, c
+    return c, 1j * z * s, 1j * s / z, c
 
 
-def skin_matrix(f: Any, surface_density: float, *, rho0: float = RHO0, c0: float = C0) -> Matrix:
+def skin_matrix(f: npt.ArrayLike, surface_density: float, *, rho0: float = RHO0, c0: float = C0) -> Matrix:
     """Chain matrix of a thin limp skin of ``surface_density`` kg/m^2 across the aperture."""
-    z = 1j * 2.0 * np.pi * np.asarray(f, dtype=float) * surface_density / (rho0 * c0)
+    z = 1j * 2.0 * np.pi * np.asarray(f, dtype=np.float64) * surface_density / (rho0 * c0)
     one = np.ones_like(z)
     return one, z, np.zeros_like(z), one
 
@@ -264,14 +280,16 @@ def chain(*mats: Matrix) -> Matrix:
     return a11, a12, a21, a22
 
 
-def tmm_tau(T: Matrix, zr: Any) -> np.ndarray:
+def tmm_tau(T: Matrix, zr: npt.ArrayLike) -> Floats:
     """Normal-incidence tau of an aperture with chain matrix T and mouth impedance z_r on both faces."""
     t11, t12, t21, t22 = T
-    den = t11 * zr + t12 + zr * (t21 * zr + t22)
-    return 4.0 * np.real(zr) / np.abs(den) ** 2
+    z: Complexes = np.asarray(zr)
+    den = t11 * z + t12 + z * (t21 * z + t22)
+    tau: Floats = 4.0 * np.real(z) / np.abs(den) ** 2
+    return tau
 
 
-def hole_diffuse_factor(ka: Any) -> np.ndarray:
+def hole_diffuse_factor(ka: npt.ArrayLike) -> Floats:
     """Diffuse/normal transmission ratio for a hole: 2 for ka <= 1, falling linearly to 1 at ka = 3.
 
     The factor 2 follows from the blocked-pressure argument for apertures small
@@ -279,5 +297,5 @@ def hole_diffuse_factor(ka: Any) -> np.ndarray:
     blend to 1 where the hole is large is common practice, no source, and
     carries about +-3 dB uncertainty.
     """
-    ka = np.asarray(ka, dtype=float)
-    return 2.0 - np.clip((ka - 1.0) / 2.0, 0.0, 1.0)
+    x = np.asarray(ka, dtype=np.float64)
+    return 2.0 - np.clip((x - 1.0) / 2.0, 0.0, 1.0)
