@@ -18,6 +18,7 @@ from PIL import Image, ImageDraw, ImageFilter
 from . import actions
 from .audit import resolve_wall_type_curve
 from .choices import FindingStatus, PhotoPurpose, Role, SealStatus
+from .field.demo import load_field_demo
 from .models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 
 JOB_NAME = "Harbourline Residences"
@@ -251,6 +252,7 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
     users = _users()
     existing = Job.objects.filter(name=JOB_NAME).first()
     if existing is not None:
+        load_field_demo(existing)  # rooms and field tests, added once
         return existing, False
     job = Job.objects.create(
         name=JOB_NAME,
@@ -405,4 +407,5 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
         point.save(update_fields=["status"])
     assert Finding.objects.filter(job=job).count() == made
     assert Finding.objects.filter(job=job, status=FindingStatus.OPEN).exists()
+    load_field_demo(job)
     return job, True

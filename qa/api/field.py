@@ -12,7 +12,7 @@ from django.http import HttpResponse
 from rest_framework import mixins, viewsets
 from rest_framework.response import Response
 
-from ..field.plan import plan_csv, test_plan
+from ..field.plan import job_test_plan, plan_csv
 from ..field.prediction import field_prediction
 from ..models import FieldTest, JunctionOverride, RoomPair, Wall
 from . import field_serializers as fs
@@ -108,10 +108,10 @@ class TestPlanViewSet(JobScopedMixin, viewsets.GenericViewSet):
         return "view"
 
     def list(self, request, *args, **kwargs):
-        return Response(test_plan(self.job))
+        return Response(job_test_plan(self.job))
 
     def csv(self, request, *args, **kwargs):
-        response = HttpResponse(plan_csv(test_plan(self.job)), content_type="text/csv; charset=utf-8")
+        response = HttpResponse(plan_csv(job_test_plan(self.job)), content_type="text/csv; charset=utf-8")
         response["Content-Disposition"] = f'attachment; filename="test-plan-job-{self.job.pk}.csv"'
         return response
 

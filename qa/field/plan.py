@@ -68,7 +68,7 @@ def _row(wall, result: dict, audit: dict, counts: dict, tested: set) -> dict[str
     }
 
 
-def test_plan(job) -> dict[str, Any]:
+def job_test_plan(job) -> dict[str, Any]:
     """The job's walls ranked for field testing, JSON-ready: ``rows`` in test order, ``by_walk``."""
     from ..audit import audits_for_walls
 
@@ -131,7 +131,7 @@ LOOK_FOR = {
 }
 
 
-def tested_summary(job) -> dict[str, Any]:
+def measured_summary(job) -> dict[str, Any]:
     """Over the job's field tests: measured minus predicted now (mean, spread) and walls far below.
 
     Each test is compared in the descriptor of its wall's field target (ASTC when none), against the

@@ -8,15 +8,15 @@ from django.views.decorators.http import require_safe
 
 from ..access import job_for
 from ..field.choices import BuildingKind
-from ..field.plan import test_plan, tested_summary
+from ..field.plan import job_test_plan, measured_summary
 
 
 @require_safe
 @login_required
-def test_plan_page(request, job_pk):
+def field_test_plan_page(request, job_pk):
     """Walls ranked by predicted field margin, then by what the walk found; every member may read it."""
     job, member = job_for(request.user, job_pk)
-    plan = test_plan(job)
+    plan = job_test_plan(job)
     return render(
         request,
         "qa/field/test_plan.html",
@@ -25,7 +25,7 @@ def test_plan_page(request, job_pk):
             "member": member,
             "plan": plan,
             "rows": plan["rows"],
-            "tested": tested_summary(job),
+            "tested": measured_summary(job),
             "building_kind": BuildingKind(job.building_kind).label,
         },
     )

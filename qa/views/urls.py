@@ -16,5 +16,5 @@ urlpatterns: list = [
     path("jobs/<id:job_pk>/report/handover.pdf", report.report_pdf, name="report-pdf"),
     path("jobs/<id:job_pk>/report/punch-list.csv", report.punch_list_csv, name="report-csv"),
     path("jobs/<id:job_pk>/report/sign/", report.sign_off, name="report-sign"),
-    path("jobs/<id:job_pk>/test-plan/", field.test_plan_page, name="test-plan"),
+    path("jobs/<id:job_pk>/test-plan/", field.field_test_plan_page, name="test-plan"),
 ]
