@@ -13,30 +13,31 @@ References
 
 from __future__ import annotations
 
-from typing import Any
-
 import numpy as np
+import numpy.typing as npt
 
 from .bands import N_BANDS
 
 __all__ = ["composite", "tau_from_tl", "tl_from_tau", "tl_with_added_area"]
 
 
-def tau_from_tl(tl: Any) -> np.ndarray:
+def tau_from_tl(tl: npt.ArrayLike) -> npt.NDArray[np.float64]:
     """Power transmission coefficient tau = 10^(-TL/10) (dimensionless; may exceed 1)."""
-    return 10.0 ** (-np.asarray(tl, dtype=float) / 10.0)
+    return 10.0 ** (-np.asarray(tl, dtype=np.float64) / 10.0)
 
 
-def tl_from_tau(tau: Any) -> np.ndarray:
+def tl_from_tau(tau: npt.ArrayLike) -> npt.NDArray[np.float64]:
     """Transmission loss TL = -10 lg tau, dB. tau > 1 gives a negative TL, kept on purpose."""
-    tau = np.asarray(tau, dtype=float)
-    if np.any(tau < 0):
+    t = np.asarray(tau, dtype=np.float64)
+    if np.any(t < 0):
         raise ValueError("tau must be >= 0 (a transmission coefficient is a power ratio)")
     with np.errstate(divide="ignore"):
-        return -10.0 * np.log10(tau)
+        return -10.0 * np.log10(t)
 
 
-def composite(areas: Any, tls: Any, *, added: Any = None) -> np.ndarray:
+def composite(
+    areas: npt.ArrayLike, tls: npt.ArrayLike, *, added: npt.ArrayLike | None = None
+) -> npt.NDArray[np.float64]:
     """Area-weighted composite transmission loss, band by band.
 
     Parameters
@@ -70,8 +71,8 @@ def composite(areas: Any, tls: Any, *, added: Any = None) -> np.ndarray:
     ----------
     .. [1] Hopkins (2007) *Sound Insulation*, Eq. 4.92.
     """
-    s = np.asarray(areas, dtype=float)
-    t = np.asarray(tls, dtype=float)
+    s = np.asarray(areas, dtype=np.float64)
+    t = np.asarray(tls, dtype=np.float64)
     if s.ndim == 0:
         raise ValueError(f"areas must be an array of element areas (m^2), got a scalar {s!r}")
     if t.ndim < 2 or t.shape[-1] != N_BANDS:
@@ -85,7 +86,7 @@ def composite(areas: Any, tls: Any, *, added: Any = None) -> np.ndarray:
         raise ValueError("areas must add up to more than 0 m^2")
     power = np.einsum("...n,...nb->...b", s, tau_from_tl(t))
     if added is not None:
-        a = np.asarray(added, dtype=float)
+        a = np.asarray(added, dtype=np.float64)
         if a.shape[-1:] != (N_BANDS,):
             raise ValueError(f"added must have {N_BANDS} bands on its last axis, got shape {a.shape}")
         if not np.all(np.isfinite(a)) or np.any(a < 0):
@@ -94,7 +95,7 @@ def composite(areas: Any, tls: Any, *, added: Any = None) -> np.ndarray:
     return tl_from_tau(power / total[..., None])
 
 
-def tl_with_added_area(tl: Any, area: float, added: Any) -> np.ndarray:
+def tl_with_added_area(tl: npt.ArrayLike, area: float, added: npt.ArrayLike) -> npt.NDArray[np.float64]:
     """TL of a wall of ``area`` m^2 and band TL ``tl`` with added transmission area(s).
 
     Parameters
@@ -114,7 +115,7 @@ def tl_with_added_area(tl: Any, area: float, added: Any) -> np.ndarray:
     s = float(area)
     if not np.isfinite(s) or s <= 0:
         raise ValueError(f"area must be a finite wall area > 0 m^2, got {area!r}")
-    a = np.asarray(added, dtype=float)
+    a = np.asarray(added, dtype=np.float64)
     if not np.all(np.isfinite(a)) or np.any(a < 0):
         raise ValueError("added transmission area must be finite and >= 0 (m^2)")
     return tl_from_tau(tau_from_tl(tl) + a / s)

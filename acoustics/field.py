@@ -28,6 +28,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .bands import BANDS
 from .constants import A0_ISO, C0, SABINE_ASTM, SABINE_ISO, T0_ISO
@@ -75,14 +76,16 @@ class FieldInputError(AcousticsError):
         self.rule = rule
 
 
-def _positive(value: Any, name: str, unit: str) -> np.ndarray:
-    v = np.asarray(value, dtype=float)
+def _positive(value: Any, name: str, unit: str) -> npt.NDArray[np.float64]:
+    v = np.asarray(value, dtype=np.float64)
     if not np.all(np.isfinite(v)) or np.any(v <= 0):
         raise ValueError(f"{name} must be finite and > 0 {unit} (scalar or one value per band)")
     return v
 
 
-def sabine_absorption(volume: float, t: Any, *, standard: str = "iso", c0: float = C0) -> np.ndarray:
+def sabine_absorption(
+    volume: float, t: npt.ArrayLike, *, standard: str = "iso", c0: float = C0
+) -> npt.NDArray[np.float64]:
     """Equivalent absorption area of a room from its reverberation time, m^2.
 
     Parameters
@@ -95,15 +98,15 @@ def sabine_absorption(volume: float, t: Any, *, standard: str = "iso", c0: float
         "iso": A = 0.16 V / T (ISO 16283-1); "astm": A = 55.26 V / (c T) (ASTM E336).
     """
     v = _positive(volume, "volume", "m^3")
-    t = _positive(t, "t (reverberation time)", "s")
+    tv = _positive(t, "t (reverberation time)", "s")
     if standard == "iso":
-        return SABINE_ISO * v / t
+        return SABINE_ISO * v / tv
     if standard == "astm":
-        return 55.26 * v / (c0 * t)
+        return 55.26 * v / (c0 * tv)
     raise ValueError(f"standard must be 'iso' or 'astm', got {standard!r}")
 
 
-def _absorption(a: Any, volume: Any, t: Any, standard: str, name: str) -> np.ndarray:
+def _absorption(a: Any, volume: Any, t: Any, standard: str, name: str) -> npt.NDArray[np.float64]:
     if a is not None:
         if volume is not None or t is not None:
             raise ValueError(f"give either {name} or volume and t, not both")
@@ -113,66 +116,108 @@ def _absorption(a: Any, volume: Any, t: Any, standard: str, name: str) -> np.nda
     return sabine_absorption(volume, t, standard=standard)
 
 
-def normalized_noise_reduction(nr: Any, t2: Any) -> np.ndarray:
+def normalized_noise_reduction(nr: npt.ArrayLike, t2: npt.ArrayLike) -> npt.NDArray[np.float64]:
     """NNR = NR + 10 lg(T2 / 0.5 s), dB (ASTM E336)."""
     return _as_bands(nr, "nr") + 10.0 * np.log10(_positive(t2, "t2", "s") / T0_ISO)
 
 
-def apparent_tl(nr: Any, area: float, *, a2: Any = None, volume: Any = None, t2: Any = None) -> np.ndarray:
+def apparent_tl(
+    nr: npt.ArrayLike,
+    area: float,
+    *,
+    a2: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t2: npt.ArrayLike | None = None,
+) -> npt.NDArray[np.float64]:
     """ATL = NR + 10 lg(S / A2), dB (ASTM E336); A2 given or from V and T2 (Sabine, ASTM constant)."""
     s = _positive(area, "area", "m^2")
     return _as_bands(nr, "nr") + 10.0 * np.log10(s / _absorption(a2, volume, t2, "astm", "a2"))
 
 
-def apparent_r(d: Any, area: float, *, a: Any = None, volume: Any = None, t: Any = None) -> np.ndarray:
+def apparent_r(
+    d: npt.ArrayLike,
+    area: float,
+    *,
+    a: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t: npt.ArrayLike | None = None,
+) -> npt.NDArray[np.float64]:
     """R' = D + 10 lg(S / A), dB (ISO 16283-1); A given or 0.16 V / T."""
     s = _positive(area, "area", "m^2")
     return _as_bands(d, "d") + 10.0 * np.log10(s / _absorption(a, volume, t, "iso", "a"))
 
 
-def standardized_level_difference(d: Any, t: Any) -> np.ndarray:
+def standardized_level_difference(d: npt.ArrayLike, t: npt.ArrayLike) -> npt.NDArray[np.float64]:
     """DnT = D + 10 lg(T / 0.5 s), dB (ISO 16283-1)."""
     return _as_bands(d, "d") + 10.0 * np.log10(_positive(t, "t", "s") / T0_ISO)
 
 
-def normalized_level_difference(d: Any, *, a: Any = None, volume: Any = None, t: Any = None) -> np.ndarray:
+def normalized_level_difference(
+    d: npt.ArrayLike,
+    *,
+    a: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t: npt.ArrayLike | None = None,
+) -> npt.NDArray[np.float64]:
     """Dn = D - 10 lg(A / 10 m^2), dB (ISO 16283-1)."""
     return _as_bands(d, "d") - 10.0 * np.log10(_absorption(a, volume, t, "iso", "a") / A0_ISO)
 
 
-def nic(nr: Any) -> Any:
+def nic(nr: npt.ArrayLike) -> Any:
     """Noise Isolation Class: ASTM E413 rating of the noise reduction NR (dB per band)."""
     return stc(nr, _label="NIC")
 
 
-def nnic(nr: Any, t2: Any) -> Any:
+def nnic(nr: npt.ArrayLike, t2: npt.ArrayLike) -> Any:
     """Normalized Noise Isolation Class: E413 rating of NNR = NR + 10 lg(T2 / 0.5 s)."""
     return stc(normalized_noise_reduction(nr, t2), _label="NNIC")
 
 
-def astc(nr: Any, area: float, *, a2: Any = None, volume: Any = None, t2: Any = None) -> Any:
+def astc(
+    nr: npt.ArrayLike,
+    area: float,
+    *,
+    a2: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t2: npt.ArrayLike | None = None,
+) -> Any:
     """Apparent Sound Transmission Class: E413 rating of ATL = NR + 10 lg(S / A2)."""
     return stc(apparent_tl(nr, area, a2=a2, volume=volume, t2=t2), _label="ASTC")
 
 
 def r_prime_w(
-    d: Any, area: float, *, a: Any = None, volume: Any = None, t: Any = None, decimal: bool = False
+    d: npt.ArrayLike,
+    area: float,
+    *,
+    a: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t: npt.ArrayLike | None = None,
+    decimal: bool = False,
 ) -> RwResult:
     """Weighted apparent sound reduction index R'w (with C, Ctr): ISO 717-1 rating of R'."""
     return rw(apparent_r(d, area, a=a, volume=volume, t=t), decimal=decimal, _label="R'w")
 
 
-def dnt_w(d: Any, t: Any, *, decimal: bool = False) -> RwResult:
+def dnt_w(d: npt.ArrayLike, t: npt.ArrayLike, *, decimal: bool = False) -> RwResult:
     """Weighted standardized level difference DnT,w (with C, Ctr): ISO 717-1 rating of DnT."""
     return rw(standardized_level_difference(d, t), decimal=decimal, _label="DnT,w")
 
 
-def dn_w(d: Any, *, a: Any = None, volume: Any = None, t: Any = None, decimal: bool = False) -> RwResult:
+def dn_w(
+    d: npt.ArrayLike,
+    *,
+    a: npt.ArrayLike | None = None,
+    volume: npt.ArrayLike | None = None,
+    t: npt.ArrayLike | None = None,
+    decimal: bool = False,
+) -> RwResult:
     """Weighted normalized level difference Dn,w (with C, Ctr): ISO 717-1 rating of Dn."""
     return rw(normalized_level_difference(d, a=a, volume=volume, t=t), decimal=decimal, _label="Dn,w")
 
 
-def flanking_path_index(r_i: Any, r_j: Any, k_ij: Any, area: float, length: float) -> np.ndarray:
+def flanking_path_index(
+    r_i: npt.ArrayLike, r_j: npt.ArrayLike, k_ij: npt.ArrayLike, area: float, length: float
+) -> npt.NDArray[np.float64]:
     """Flanking-path index R_ij = (R_i + R_j)/2 + K_ij + 10 lg(S_s / (l0 l_ij)), dB (l0 = 1 m).
 
     Parameters
@@ -193,23 +238,23 @@ def flanking_path_index(r_i: Any, r_j: Any, k_ij: Any, area: float, length: floa
     s = _positive(area, "area", "m^2")
     lf = _positive(length, "length", "m")
     return (
-        (np.asarray(r_i, float) + np.asarray(r_j, float)) / 2.0
-        + np.asarray(k_ij, float)
+        (np.asarray(r_i, np.float64) + np.asarray(r_j, np.float64)) / 2.0
+        + np.asarray(k_ij, np.float64)
         + 10.0 * np.log10(s / lf)
     )
 
 
-def energy_sum_index(indices: Any, axis: int = 0) -> np.ndarray:
+def energy_sum_index(indices: npt.ArrayLike, axis: int = 0) -> npt.NDArray[np.float64]:
     """Apparent index of parallel paths, R' = -10 lg sum_p 10^(-R_p/10), dB (EN 12354-1 Formula (26))."""
-    r = np.asarray(indices, dtype=float)
+    r = np.asarray(indices, dtype=np.float64)
     return -10.0 * np.log10(np.sum(10.0 ** (-r / 10.0), axis=axis))
 
 
-def dnt_from_r_prime(r_prime: Any, volume: float, area: float) -> np.ndarray:
+def dnt_from_r_prime(r_prime: npt.ArrayLike, volume: float, area: float) -> npt.NDArray[np.float64]:
     """DnT = R' + 10 lg(0.32 V / S), dB (EN/ISO 12354-1 Formula 5b; 0.32 = 0.16 / 0.5 s)."""
     v = _positive(volume, "volume", "m^3")
     s = _positive(area, "area", "m^2")
-    return np.asarray(r_prime, float) + 10.0 * np.log10(SABINE_ISO / T0_ISO * v / s)
+    return np.asarray(r_prime, np.float64) + 10.0 * np.log10(SABINE_ISO / T0_ISO * v / s)
 
 
 # ------------------------------------------------------------------ field tests (measured bands)
@@ -217,7 +262,7 @@ _ISO_RANGE = (3, 19)  # 100-3150 Hz, ISO 717-1
 _ASTM_RANGE = (4, 20)  # 125-4000 Hz, ASTM E413
 
 
-def _band_input(value: Any, name: str) -> np.ndarray:
+def _band_input(value: Any, name: str) -> npt.NDArray[np.float64]:
     try:
         arr = np.asarray(value, dtype=float)
     except (TypeError, ValueError):
@@ -241,7 +286,9 @@ def _scalar(value: Any, name: str, unit: str, upper: float) -> float:
     return v
 
 
-def background_correction(l2: Any, b2: Any) -> tuple[np.ndarray, np.ndarray]:
+def background_correction(
+    l2: npt.ArrayLike, b2: npt.ArrayLike
+) -> tuple[npt.NDArray[np.float64], npt.NDArray[np.bool_]]:
     """Correct receiving-room levels for background noise (ISO 16283-1 Clause 9.2; ASTM E336 likewise).
 
     Parameters
@@ -265,14 +312,14 @@ def background_correction(l2: Any, b2: Any) -> tuple[np.ndarray, np.ndarray]:
     .. [1] ISO 16283-1:2014, Clause 9.2 (from memory: 10 dB / 6 dB thresholds, 1.3 dB limit).
     .. [2] ASTM E336 background correction (from memory; the same thresholds are applied here).
     """
-    l2 = np.asarray(l2, float)
-    b2 = np.asarray(b2, float)
-    diff = l2 - b2
+    level = np.asarray(l2, np.float64)
+    background = np.asarray(b2, np.float64)
+    diff = level - background
     with np.errstate(invalid="ignore", over="ignore"):
-        logsub = 10.0 * np.log10(np.maximum(10.0 ** (l2 / 10.0) - 10.0 ** (b2 / 10.0), 1e-300))
-        out = np.where(diff > 10.0, l2, np.where(diff >= 6.0, logsub, l2 - 1.3))
+        logsub = 10.0 * np.log10(np.maximum(10.0 ** (level / 10.0) - 10.0 ** (background / 10.0), 1e-300))
+        out = np.where(diff > 10.0, level, np.where(diff >= 6.0, logsub, level - 1.3))
         limit = diff < 6.0
-    return np.where(np.isnan(b2), l2, out), limit & ~np.isnan(b2)
+    return np.where(np.isnan(background), level, out), limit & ~np.isnan(background)
 
 
 @dataclass(frozen=True, eq=False)
@@ -295,13 +342,13 @@ class FieldTest:
         "background_limit" (some band is a limit value), "iso_incomplete", "astm_incomplete".
     """
 
-    d: np.ndarray
-    dnt: np.ndarray
-    r_prime: np.ndarray
-    nr: np.ndarray
-    nnr: np.ndarray
-    atl: np.ndarray
-    limit: np.ndarray
+    d: npt.NDArray[np.float64]
+    dnt: npt.NDArray[np.float64]
+    r_prime: npt.NDArray[np.float64]
+    nr: npt.NDArray[np.float64]
+    nnr: npt.NDArray[np.float64]
+    atl: npt.NDArray[np.float64]
+    limit: npt.NDArray[np.bool_]
     r_prime_w: RwResult | None
     dnt_w: RwResult | None
     astc: int | None
@@ -315,11 +362,11 @@ class FieldTest:
         return [int(f) for f in BANDS[self.limit]]
 
 
-def _complete(*arrays: np.ndarray, rng: tuple[int, int]) -> bool:
+def _complete(*arrays: npt.NDArray[np.float64], rng: tuple[int, int]) -> bool:
     return all(np.all(np.isfinite(a[rng[0] : rng[1]])) for a in arrays)
 
 
-def _rate_test(bands: dict[str, np.ndarray], limit: np.ndarray) -> FieldTest:
+def _rate_test(bands: dict[str, npt.NDArray[np.float64]], limit: npt.NDArray[np.bool_]) -> FieldTest:
     iso = _complete(bands["dnt"], bands["r_prime"], rng=_ISO_RANGE)
     astm = _complete(bands["atl"], bands["nnr"], rng=_ASTM_RANGE)
     nic_ok = _complete(bands["nr"], rng=_ASTM_RANGE)
