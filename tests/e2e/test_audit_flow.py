@@ -18,6 +18,13 @@ pytestmark = [pytest.mark.e2e, pytest.mark.slow]
 
 DEMO_PASSWORD = "walk-the-walls"  # the demo's invented users (qa/demo.py)
 DESKTOP = {"viewport": {"width": 1280, "height": 800}}
+# The phone of tests/conftest.py; tests/e2e/conftest.py now shadows the bare name "conftest".
+PHONE = {
+    "viewport": {"width": 390, "height": 844},
+    "device_scale_factor": 2,
+    "is_mobile": True,
+    "has_touch": True,
+}
 
 
 def jpeg_bytes(colour=(120, 140, 160)) -> bytes:
@@ -61,8 +68,6 @@ def demo_job(transactional_db):
 
 @pytest.mark.parametrize("size", ["phone", "desktop"])
 def test_owner_crew_inspector_flow(size, demo_job, browser, live_server, artifacts, tmp_path):
-    from conftest import PHONE
-
     from qa.models import Event, Finding
 
     ctx = browser.new_context(**(PHONE if size == "phone" else DESKTOP), accept_downloads=True)
