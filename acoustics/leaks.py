@@ -32,11 +32,14 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from . import apertures as ap
 from .bands import BANDS, N_BANDS, averaging_frequencies, band_edges
 from .constants import C0, RHO0
 from .errors import GeometryError
+
+Floats = npt.NDArray[np.float64]
 
 __all__ = [
     "Leak",
@@ -107,7 +110,7 @@ class Leak:
         Geometric open cross-section, m^2 (NaN for defects that are not gaps).
     """
 
-    area: np.ndarray
+    area: Floats
     kind: str
     label: str = ""
     flags: tuple[str, ...] = ()
@@ -161,7 +164,7 @@ def added_area(area: Any, kind: str = "added", label: str = "", flags: tuple[str
     return Leak.added(area, kind=kind, label=label, flags=flags)
 
 
-def band_average(tau: Callable[[np.ndarray], np.ndarray], points: int = SUB_BAND_POINTS) -> np.ndarray:
+def band_average(tau: Callable[[Floats], Floats], points: int = SUB_BAND_POINTS) -> Floats:
     """Mean of ``tau(f)`` over ``points`` log-spaced frequencies inside each band, shape (21,)."""
     f = averaging_frequencies(points)
     return np.asarray(tau(f), dtype=float).mean(axis=1)
@@ -169,7 +172,7 @@ def band_average(tau: Callable[[np.ndarray], np.ndarray], points: int = SUB_BAND
 
 def _top_k(width: float, c0: float) -> float:
     """k times ``width`` at the upper edge of the 5000 Hz band."""
-    return 2.0 * np.pi * band_edges()[1][-1] / c0 * width
+    return 2.0 * np.pi * float(band_edges()[1][-1]) / c0 * width
 
 
 def _slit_flags(width: float, length: float, c0: float) -> list[str]:
@@ -276,7 +279,7 @@ def hole(
     if diffuse not in ("blend", "double"):
         raise GeometryError(f"diffuse must be 'blend' or 'double', got {diffuse!r}")
 
-    def tau(f: np.ndarray) -> np.ndarray:
+    def tau(f: Floats) -> Floats:
         g = ap.hole_diffuse_factor(2.0 * np.pi * f / c0 * a) if diffuse == "blend" else 2.0
         return g * ap.wilson_soroka_tau(f, a, d, c0=c0)
 
@@ -382,7 +385,7 @@ def annular_gap(
     L = np.pi * (D + g)
     s_a = L * g
 
-    def tau(f: np.ndarray) -> np.ndarray:
+    def tau(f: Floats) -> Floats:
         k = 2.0 * np.pi * f / c0
         K = k * g
         zr = K / 2.0 * np.minimum(1.0, k * L / np.pi) + 1j * K * ap.slit_end_correction(
@@ -427,8 +430,9 @@ def series_slit(
     -----
     Chain matrices per unit length in (p, u w) with characteristic impedance rho0 c0 zeta_i / w_i, the
     air in each section with the slit-pore visco-thermal functions
-    (:func:`acoustics.apertures.slit_viscothermal`), mouths as baffled strips of the end sections' widths; transmitted / incident power per unit
-    length 4 rho0 c0 Re Z_B / |T11 Z_B + T12 + Z_A (T21 Z_B + T22)|^2 (derived as method notes 6.5,
+    (:func:`acoustics.apertures.slit_viscothermal`), mouths as baffled strips of the end sections'
+    widths; transmitted / incident power per unit length
+    4 rho0 c0 Re Z_B / |T11 Z_B + T12 + Z_A (T21 Z_B + T22)|^2 (derived as method notes 6.5,
     with volume-velocity continuity at each change of width).
     """
     if not sections:
@@ -437,7 +441,7 @@ def series_slit(
     L = _check_positive(length, "length")
     rc = rho0 * c0
 
-    def tau_area(f: np.ndarray) -> np.ndarray:
+    def tau_area(f: Floats) -> Floats:
         mats = []
         for w, d in secs:
             kc, zeta = ap.slit_viscothermal(f, w, rho0=rho0, c0=c0)
@@ -449,7 +453,8 @@ def series_slit(
         za = rc / secs[0][0] * ap.strip_impedance(k * secs[0][0])
         zb = rc / secs[-1][0] * ap.strip_impedance(k * secs[-1][0])
         den = t11 * zb + t12 + za * (t21 * zb + t22)
-        return 2.0 * 4.0 * rc * np.real(zb) / np.abs(den) ** 2
+        tau: Floats = 2.0 * 4.0 * rc * np.real(zb) / np.abs(den) ** 2
+        return tau
 
     w0 = secs[0][0]
     flags = _slit_flags(max(w for w, _ in secs), L, c0)
@@ -463,7 +468,9 @@ def open_area(area: float, *, label: str = "") -> Leak:
     return Leak(np.full(N_BANDS, s), "open_area", label, ("open_area_crude",), s)
 
 
-def _mouth(shape: str, width: float, length: float, c0: float):
+def _mouth(
+    shape: str, width: float, length: float, c0: float
+) -> tuple[float, Callable[[Floats], ap.Complexes], float | None]:
     if shape == "slit":
         return width * length, lambda f: ap.strip_impedance(2.0 * np.pi * f / c0 * width), 2.0
     if shape == "hole":
@@ -479,13 +486,13 @@ def _tmm_leak(
     kind: str,
     label: str,
     flags: list[str],
-    sections: Callable[[np.ndarray], ap.Matrix],
+    sections: Callable[[Floats], ap.Matrix],
     points: int,
     c0: float,
 ) -> Leak:
     s, zr, factor = _mouth(shape, width, length, c0)
 
-    def tau(f: np.ndarray) -> np.ndarray:
+    def tau(f: Floats) -> Floats:
         t = ap.tmm_tau(sections(f), zr(f))
         if factor is not None:
             return factor * t  # slit: exactly Gomperts' m = 8 vs m = 4
@@ -550,7 +557,7 @@ def filled_gap(
         raise GeometryError(f"fill_depth ({lf} m) must not exceed depth ({d} m)")
     lf = min(lf, d)
 
-    def sections(f: np.ndarray) -> ap.Matrix:
+    def sections(f: Floats) -> ap.Matrix:
         kc, zeta, _ = ap.delany_bazley(f, sigma, rho0=rho0, c0=c0)
         mats = [ap.channel_matrix(kc, zeta, lf)]
         if d - lf > 0:
@@ -598,7 +605,7 @@ def skin_gap(
     d = _check_positive(depth, "depth")
     ms = _check_positive(surface_density, "surface_density", "kg/m^2")
 
-    def sections(f: np.ndarray) -> ap.Matrix:
+    def sections(f: Floats) -> ap.Matrix:
         air = ap.channel_matrix(2.0 * np.pi * f / c0 + 0j, 1.0, d)
         return ap.chain(ap.skin_matrix(f, ms, rho0=rho0, c0=c0), air)
 
@@ -640,7 +647,7 @@ def crack(
     L = _check_positive(length, "length")
     d = _check_positive(depth, "depth")
 
-    def sections(f: np.ndarray) -> ap.Matrix:
+    def sections(f: Floats) -> ap.Matrix:
         kc, zeta = ap.slit_viscothermal(f, w, rho0=rho0, c0=c0)
         return ap.channel_matrix(kc, zeta, d)
 
