@@ -6,7 +6,7 @@ from django.urls import include, path
 from rest_framework.routers import SimpleRouter
 
 from .. import converters  # noqa: F401  (registers <id:...>)
-from . import auth, docs, field, photo_views, views
+from . import audit_views, auth, docs, field, photo_views, views
 
 jobs = SimpleRouter()
 jobs.register("jobs", views.JobViewSet, basename="job")
@@ -30,6 +30,11 @@ urlpatterns = [
     path("", include(jobs.urls)),
     path("jobs/<id:job_pk>/", include(in_job.urls)),
     path("jobs/<id:job_pk>/walls/<id:wall_pk>/", include(in_wall.urls)),
+    path(
+        "jobs/<id:job_pk>/walls/<id:wall_pk>/audit/",
+        audit_views.WallAuditView.as_view(),
+        name="wall-audit",
+    ),
     path(
         "jobs/<id:job_pk>/walls/<id:wall_pk>/field-prediction/",
         field.FieldPredictionViewSet.as_view({"get": "list"}),

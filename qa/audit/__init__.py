@@ -10,7 +10,14 @@ from __future__ import annotations
 from .cache import ENGINE_VERSION, invalidate_wall, invalidate_wall_type
 from .curves import curve_errors, predict_curve, rate_curve, resolve_wall_type_curve
 from .fix_order import fix_steps
-from .summary import audit_summary, audits_for_job, audits_for_walls, compute_summary, wall_inputs
+from .summary import (
+    audit_summary,
+    audits_for_job,
+    audits_for_walls,
+    compute_summary,
+    wall_inputs,
+    wall_model_for,
+)
 
 __all__ = [
     "ENGINE_VERSION",
@@ -26,4 +33,5 @@ __all__ = [
     "rate_curve",
     "resolve_wall_type_curve",
     "wall_inputs",
+    "wall_model_for",
 ]

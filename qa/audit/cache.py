@@ -17,7 +17,7 @@ from django.core.cache import cache
 from django.db import transaction
 
 #: Bump when the adapter or the engine changes the numbers; old cache entries are then ignored.
-ENGINE_VERSION = "a1"
+ENGINE_VERSION = "a2"
 AUDIT_TIMEOUT = 60 * 60 * 24 * 30  # s; stamps make stale entries unreachable long before this
 
 _STAMP_W = "sealwalk:audit:stamp:w:{}"

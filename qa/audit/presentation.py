@@ -89,6 +89,36 @@ def event_text(event: Event, labels: dict) -> str:
     return f"{text} · “{note}”" if note else text
 
 
+def modelled_paths(summary: dict) -> dict[int, str]:
+    """{finding id: how the whole-wall model priced it} for every finding of the walked wall."""
+    rows = ((summary.get("views") or {}).get("walked") or {}).get("rows") or summary.get("rows") or []
+    return {r["finding"]: r.get("path", "") for r in rows}
+
+
+def interaction_rows(summary: dict, by_id: dict, member=None) -> list[dict]:
+    """Pairs of findings the wall's model joins (through the cavity or under a plate), with the note.
+
+    A crew member sees the pairs that include one of their trade's findings.
+    """
+    out = []
+    for x in summary.get("interactions") or []:
+        pair = [by_id.get(i) for i in x["findings"]]
+        if member is not None and member.is_crew and not any(f and f.trade == member.trade for f in pair):
+            continue
+        out.append(
+            {
+                "ids": x["findings"],
+                "findings": pair,
+                "path": x.get("path", ""),
+                "note": x.get("note", ""),
+                "fix_both": x.get("fix_both"),
+                "fix_alone": x.get("fix_alone") or [],
+                "both_faces": x.get("note", "").startswith("fix both faces"),
+            }
+        )
+    return out
+
+
 # --------------------------------------------------------------------------- job and wall overviews
 FIX_LIST_SHOWN = 40
 
@@ -228,6 +258,7 @@ def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dic
     u = job.units
     steps = fix_steps(summary)
     by_id = {f.pk: f for f in findings}
+    paths = modelled_paths(summary)
     audit_rows, reached = [], False
     target = summary.get("target")
     verified = summary.get("verified") or {}
@@ -249,6 +280,7 @@ def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dic
                 "share_bar": _bar(round(1000 * st["share"]), 1000),
                 "needed": st["needed"],
                 "reaches": hits,
+                "path": paths.get(fid, ""),
             }
         )
     chart_obj = chart.tl_chart(summary, verdict=verdict)
@@ -267,6 +299,7 @@ def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dic
                 "feedback": [],
                 "photos": list(f.photos.all()),
                 "step": steps.get(f.pk),
+                "path": paths.get(f.pk, ""),
                 "can_fix": can(member, "fix") and mine and f.status in OPEN,
                 "can_check": can(member, "verify") and f.status == FindingStatus.FIXED,
                 "can_reopen": can(member, "verify") and f.status == FindingStatus.VERIFIED,
@@ -311,5 +344,6 @@ def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dic
         "events": [{"e": e, "text": event_text(e, labels)} for e in reversed(events)],
         "flags": [names[k] for k in s.get("flags", [])],
         "unmodelled": unmodelled,
+        "interactions": interaction_rows(summary, by_id, member),
         "fixed_waiting": sum(f.status == FindingStatus.FIXED for f in findings),
     }

@@ -1,15 +1,22 @@
 """The one adapter between the record and the acoustics engine.
 
-It turns stored SI data (wall type curves and layers, wall size, openings, findings) into the
-engine's inputs, runs :func:`acoustics.audit`, and hands plain JSON-ready data to pages, the API
-and reports. Audits are cached per wall through Django's cache framework (never in the process):
-the key carries a stamp per wall and per wall type, and :mod:`qa.signals` replaces a stamp when
-any input of the wall changes (findings, openings, the wall, its wall type).
+It turns stored SI data (wall type curve or layers, wall size, openings and doors, findings) into one
+model per wall (:func:`acoustics.wall_model`), audits it (:func:`acoustics.audit_wall`), and hands
+plain JSON-ready data to pages, the API and reports. Audits are cached per wall through Django's
+cache framework (never in the process): the key carries a stamp per wall and per wall type, and
+:mod:`qa.signals` replaces a stamp when any input of the wall changes (findings, openings, the wall,
+its wall type).
 
 The audit package is split by feature: :mod:`.curves` (stored TL curves), :mod:`.finding_leaks`
-(one finding as an engine leak), :mod:`.cache` (stamps and invalidation), :mod:`.fix_order` (a
-summary's fix-first steps), :mod:`.chart` (chart data), :mod:`.presentation` (texts and page
-contexts); this module builds a wall's engine inputs and its audit summary, cached per wall.
+(one finding as an engine finding spec, the wall's construction and doors), :mod:`.cache` (stamps
+and invalidation), :mod:`.fix_order` (a summary's fix-first steps), :mod:`.chart` (chart data),
+:mod:`.presentation` (texts and page contexts), :mod:`.wall_json` (the audit as the API serves it);
+this module builds a wall's model inputs and its audit summary, cached per wall.
+
+Every finding is priced on the whole wall: the as-found wall has every open finding in place at
+once; a finding's cost ("alone") is the rating with it removed from the whole model minus the
+as-found rating; the fix-first order, ``after`` and ``needed`` are computed on the whole model at
+every step, so two findings on opposite faces that only leak together are seen together.
 
 Three views of one wall (finding statuses, :class:`qa.choices.FindingStatus`):
 
@@ -18,17 +25,18 @@ Three views of one wall (finding statuses, :class:`qa.choices.FindingStatus`):
   fixed — the conservative state of the wall now;
 - **as reported**: findings a crew marked fixed also count as fixed.
 
-Every rating here is a laboratory-type estimate from the recorded gaps, not a field test.
+Every rating here is a laboratory-type estimate from the recorded defects, not a field test.
 
 References
 ----------
 .. [1] Hopkins, C. (2007) *Sound Insulation*, Eq. 4.92 (composite of wall and openings).
-.. [2] Sealwalk acoustics method notes, Sections 5-7 and 12 (leak and defect models, the audit).
+.. [2] Sealwalk acoustics method notes, Sections 5-7, 12 and 15 (leak and defect models, the
+   audit, the whole-wall model).
 """
 
 from __future__ import annotations
 
-import math
+import re
 from collections.abc import Iterable
 from typing import Any
 
@@ -39,186 +47,259 @@ from django.db.models import Prefetch, prefetch_related_objects
 from ..choices import UNRESOLVED, FindingStatus
 from ..models import Finding, Opening, Wall
 from .cache import AUDIT_TIMEOUT, ENGINE_VERSION, audit_keys
-from .curves import tl_array
-from .finding_leaks import Unmodelled, WallContext, finding_leak
+from .finding_leaks import (
+    Unmodelled,
+    WallContext,
+    door_set,
+    finding_spec,
+    finite,
+    is_door_seal,
+    opening_row,
+)
 
-#: Words for the flags this adapter adds on top of :data:`acoustics.FLAG_TEXT`.
+#: Words for the flags this adapter adds on top of the engine's flag texts.
 EXTRA_FLAG_TEXT = {
-    "one_face_heuristic": "one-face gap degrades that face inside the double-leaf model (not a through-path)",
-    "one_face_lab_fallback": "one-face gap on a wall type known only by its lab curve: estimated as the gap "
-    "times the square root of the wall's transmission (derived, no published "
-    "validation)",
     "single_leaf_through": "single-leaf wall: a gap in one face goes through",
-    "through_path": "back-to-back boxes: the lost cavity over the box footprint plus the box leak as a "
-    "through-path",
     "opening_rating_contour": "an opening known only by its rating is drawn as the rating's reference "
     "contour placed at that rating (an approximation of its curve)",
     "opening_unknown": "an opening with no TL curve and no rating is counted as wall",
-    "equivalent_hole": "open area taken as a round hole of the same area",
     "not_modelled": "some findings cannot be modelled on this wall type; their cost is not included",
-    "tl_gaps_filled": "bands missing from the lab curve were filled from the nearest measured band for "
-    "the one-face estimate",
+    "tl_gaps_filled": "bands missing from a lab curve were filled from the nearest measured band for "
+    "the model (the ratings use measured bands only)",
+    "lab_curve": "wall known only by its lab curve",
 }
 
 RATING_NAMES = {"stc": "STC", "rw": "Rw"}
+#: Index of the 500 Hz band in the 21 bands 50-5000 Hz.
+I500 = 10
+_FINDING_INDEX = re.compile(r"^findings\[(\d+)\][.:]?\s*")
+
+
+def _engine_version() -> str:
+    from acoustics.wall_audit import ENGINE_VERSION as engine
+
+    return engine
+
+
+def flag_texts() -> dict[str, str]:
+    """Every flag's words: the engine's leak and wall-model flags, then this adapter's."""
+    import acoustics
+    from acoustics.wall_model import WALL_FLAG_TEXT
+
+    return {**acoustics.FLAG_TEXT, **WALL_FLAG_TEXT, **EXTRA_FLAG_TEXT}
 
 
 # --------------------------------------------------------------------------- wall inputs
-def _opening_curves(wall, openings, scheme: str) -> tuple[list, list, list[str], list[dict]]:
-    import acoustics
-
-    areas, tls, flags, rows = [], [], [], []
-    for o in openings:
-        if o.removed:
-            continue
-        row = {"id": o.pk, "label": str(o), "kind": o.kind, "area": o.area_m2, "rating": o.rating}
-        if o.tl:
-            tl, row["source"] = tl_array(o.tl), "curve"
-        elif o.rating is not None:
-            tl, row["source"] = acoustics.contour(scheme, o.rating), "rating contour"
-            flags.append("opening_rating_contour")
-        else:
-            row["source"] = "unknown"
-            flags.append("opening_unknown")
-            rows.append(row)
-            continue
-        areas.append(o.area_m2)
-        tls.append(tl)
-        rows.append(row)
-    return areas, tls, flags, rows
-
-
 def _live_findings(wall) -> list:
     cache_ = getattr(wall, "_prefetched_objects_cache", {})
     if "findings" in cache_:
         return [f for f in wall.findings.all() if not f.removed]
-    return list(wall.findings.filter(removed=False).order_by("id"))
+    return list(wall.findings.filter(removed=False).select_related("seal_point").order_by("id"))
 
 
 def _openings(wall) -> list:
     return [o for o in wall.openings.all() if not o.removed]
 
 
-def wall_inputs(wall, findings=None, *, memo: dict | None = None):
-    """A wall's engine inputs: designed TL, area, leaks and what was done to build them.
+def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict, dict]:
+    """A wall's model inputs: the keyword arguments of :func:`acoustics.wall_model` and what was done.
 
     Parameters
     ----------
     wall : Wall
         With its wall type (select_related) and, ideally, openings and findings prefetched.
     findings : iterable of Finding, optional
-        The findings to turn into leaks; default: the live findings that still cost the wall as
-        verified (open, reopened, fixed but not verified).
+        The findings to model; default: the live findings that still cost the wall as verified
+        (open, reopened, fixed but not verified).
 
     Returns
     -------
-    tl : ndarray, shape (21,)
-        Designed TL, dB: the wall type curve (NaN where not measured) combined with the openings by
-        area, :func:`acoustics.composite`. An opening known only by its rating is taken as the
-        rating's reference contour placed at that rating (an approximation: a real door curve is
-        rarely that shape; flag "opening_rating_contour").
-    area : float
-        Wall area including openings, m^2.
-    leaks : list of acoustics.Leak
-        One per modelled finding, in the order of ``meta["finding_ids"]``; ``count`` is included.
+    inputs : dict
+        ``construction`` (the wall type's layers, or its lab curve with leaves and thickness),
+        ``area`` (wall area including openings, m^2), ``height`` (m), ``openings`` ([{area m^2, tl
+        dB}]), ``doors`` (door sets, :class:`acoustics.DoorSet` fields), ``findings`` (finding specs,
+        :mod:`qa.audit.finding_leaks`), in the order of ``meta["finding_ids"]``.
     meta : dict
         ``finding_ids``, ``unmodelled`` ([{"finding": id, "reason": str}]), ``openings`` rows,
-        ``flags``, ``net_area`` (m^2), ``wall_type_tl`` (list, None for missing bands).
+        ``flags``, ``net_area`` (m^2), ``wall_type_tl`` (list, None for missing bands), ``layered``.
+
+    Raises
+    ------
+    ValueError
+        "openings: ..." when the doors and windows are larger than the wall.
 
     Notes
     -----
-    Mapping of finding kinds: slit -> :func:`acoustics.slit` (``edge`` for a perimeter gap), hole ->
-    :func:`acoustics.hole`, ring -> :func:`acoustics.ring_gap`, open area -> :func:`acoustics.open_area`;
-    fill "fibre" -> :func:`acoustics.filled_gap`, "skin" -> :func:`acoustics.skin_gap`; all times
-    ``count``. A gap in one face of a cavity wall -> :func:`acoustics.one_face_gap` (layers known) or
-    :func:`acoustics.one_face_gap_from_lab`. bridge -> :func:`acoustics.rigid_bridge`, missing
-    insulation -> :func:`acoustics.insulation_defect`, channel short ->
-    :func:`acoustics.channel_short_circuit`, missing layer -> :func:`acoustics.missing_layer`,
-    back-to-back boxes -> :func:`acoustics.back_to_back_boxes`. Unrecorded depth: the wall type
-    thickness for a through-path, the board (leaf) thickness for a one-face gap.
+    A door opening with a known curve becomes a door set (its seals priced by
+    :func:`acoustics.door_leak`) when the wall has findings at door seal points; other openings
+    enter the designed wall by area (Hopkins 2007, Eq. 4.92). An opening known only by its rating is
+    taken as the rating's reference contour placed at that rating (flag "opening_rating_contour").
+    A finding the engine refuses (e.g. a missing batt on a wall type known only by its lab curve) is
+    listed in ``unmodelled`` with the engine's reason and left out of the model.
     """
     import acoustics
 
     scheme = wall.rating_scheme or "stc"
     if findings is None:
         findings = [f for f in _live_findings(wall) if f.status in UNRESOLVED]
+    findings = list(findings)
     ctx = WallContext(wall, memo)
-    area = ctx.area
-    wall_tl = ctx.tl
-    o_areas, o_tls, flags, o_rows = _opening_curves(wall, _openings(wall), scheme)
-    net = area - sum(o_areas)
-    if net <= 0:
+    flags = list(ctx.flags)
+    openings, doors, rows, used = [], [], [], 0.0
+    door_seals = any(is_door_seal(f) for f in findings)
+    for o in _openings(wall):
+        row, tl, oflags = opening_row(o, scheme)
+        flags += oflags
+        rows.append(row)
+        if tl is None:
+            continue
+        used += o.area_m2
+        if door_seals and o.kind == "door" and not doors:
+            doors.append(door_set(o, tl))
+            row["source"] += ", door set with its seals"
+        else:
+            openings.append({"area": float(o.area_m2), "tl": [float(v) for v in tl]})
+    if used >= ctx.area:
         raise ValueError("openings: the doors and windows are larger than the wall")
-    if o_areas:
-        tl = acoustics.composite([net, *o_areas], np.vstack([wall_tl, *o_tls]))
-    else:
-        tl = wall_tl
-    leaks, ids, unmodelled = [], [], []
+    ctx.door_index = 0 if doors else None
+    specs, ids, unmodelled = [], [], []
     for f in findings:
         try:
-            leaks.append(finding_leak(f, ctx))
+            specs.append(finding_spec(f, ctx))
             ids.append(f.pk)
         except Unmodelled as exc:
             unmodelled.append({"finding": f.pk, "reason": str(exc)})
+    inputs = {
+        "construction": ctx.construction,
+        "area": ctx.area,
+        "height": ctx.height,
+        "openings": openings,
+        "doors": doors,
+        "findings": specs,
+    }
+    # Findings the engine refuses on this wall leave the model one by one, each with its reason.
+    while specs:
+        try:
+            acoustics.wall_model(**inputs)
+            break
+        except acoustics.GeometryError as exc:
+            m = _FINDING_INDEX.match(str(exc))
+            if m is None or int(m.group(1)) >= len(specs):
+                raise
+            i = int(m.group(1))
+            unmodelled.append({"finding": ids[i], "reason": str(exc)[m.end() :] or str(exc)})
+            del specs[i], ids[i]
     if unmodelled:
         flags.append("not_modelled")
     meta = {
         "finding_ids": ids,
         "unmodelled": unmodelled,
-        "openings": o_rows,
-        "flags": flags,
-        "net_area": net,
-        "wall_type_tl": [None if not math.isfinite(v) else float(v) for v in wall_tl],
+        "openings": rows,
+        "flags": list(dict.fromkeys(flags)),
+        "net_area": ctx.area - used,
+        "wall_type_tl": [finite(float(v)) for v in ctx.raw_tl],
+        "layered": ctx.layered,
     }
-    return tl, area, leaks, meta
+    return inputs, meta
+
+
+def wall_model_for(wall, findings=None, *, memo: dict | None = None):
+    """The wall's whole model (:class:`acoustics.WallModel`) and the meta of :func:`wall_inputs`."""
+    import acoustics
+
+    inputs, meta = wall_inputs(wall, findings, memo=memo)
+    return acoustics.wall_model(**inputs), meta
 
 
 # --------------------------------------------------------------------------- audit summaries
-def _terms(tl: np.ndarray, scheme: str) -> dict | None:
+def _terms(tl, scheme: str) -> dict | None:
     """C and Ctr of an Rw curve (ISO 717-1), None for STC or when bands are missing."""
     import acoustics
 
     if scheme != "rw":
         return None
     try:
-        r = acoustics.rw(tl)
+        r = acoustics.rw(np.array([np.nan if v is None else v for v in tl], dtype=float))
     except acoustics.RatingError:
         return None
     return {"c": int(r.c), "ctr": int(r.ctr)}
 
 
-def _view(tl, area, leaks, ids, statuses, scheme, target) -> dict:
+def _sub_model(model, keep: list[int]):
+    """The same wall with only the findings ``keep`` (indices into ``model.parts``) open."""
     import acoustics
 
-    a = acoustics.audit(tl, area, leaks, rating=scheme, target=target).to_dict()
+    if len(keep) == len(model.parts):
+        return model
+    pos = {k: j for j, k in enumerate(keep)}
+    return acoustics.WallModel(
+        model.construction,
+        model.area,
+        model.base,
+        tuple(model.parts[k] for k in keep),
+        model.cross[np.ix_(keep, keep)],
+        {(pos[k], pos[l]): p for (k, l), p in model.cross_path.items() if k in pos and l in pos},
+        model.flags,
+    )
+
+
+def _curve(tl, missing: np.ndarray) -> list:
+    """A band curve for JSON: None where the wall type's lab curve has no measurement."""
+    return [None if (miss or v is None) else v for v, miss in zip(tl, missing, strict=True)]
+
+
+def _view(model, keep, ids, statuses, scheme, target, missing) -> dict:
+    import acoustics
+    from acoustics.ratings import rating_weights
+
+    sub = _sub_model(model, keep)
+    audit = acoustics.audit_wall(sub, rating=scheme, target=target)
+    a = audit.to_dict()
+    sel = [ids[k] for k in keep]
+    in_order, before = {}, audit.as_found
+    for k, after in zip(audit.order, audit.after, strict=True):
+        in_order[sel[k]] = int(after) - before
+        before = int(after)
     rows = [
         {
-            "finding": ids[i],
-            "gain": a["gain"][i],
-            "open_area_500": a["open_area_500"][i],
-            "power_share": a["power_share"][i],
-            "kind": a["kinds"][i],
-            "label": a["labels"][i],
-            "status": statuses[ids[i]],
-            "flags": list(leaks[i].flags),
+            "finding": fid,
+            "gain": int(audit.gain[j]),
+            "alone": int(audit.gain[j]),
+            "in_order": in_order[fid],
+            "open_area_500": float(sub.parts[j].linear[I500]),
+            "power_share": float(audit.power_share[j]),
+            "kind": sub.parts[j].kind,
+            "label": sub.parts[j].label,
+            "status": statuses[fid],
+            "path": audit.paths[j],
+            "path_kind": audit.path_kinds[j],
+            "flags": list(audit.flags[j]),
         }
-        for i in range(len(leaks))
+        for j, fid in enumerate(sel)
     ]
+    weights = rating_weights(scheme)
+    total = float(sub.power() @ weights)
+    as_found_tl = _curve(a["as_found_tl"], missing)
+    by_str = {str(fid): fid for fid in sel}
     return {
-        "as_found": a["as_found"],
-        "terms": _terms(np.array([np.nan if v is None else v for v in a["as_found_tl"]]), scheme),
+        "as_found": audit.as_found,
+        "if_reported_fixed": audit.if_reported_fixed,
+        "terms": _terms(as_found_tl, scheme),
         "rows": rows,
-        "order": [ids[i] for i in a["order"]],
-        "after": a["after"],
-        "needed": None if a["needed"] is None else [ids[i] for i in a["needed"]],
+        "order": [sel[k] for k in audit.order],
+        "after": [int(v) for v in audit.after],
+        "needed": None if audit.needed is None else [sel[k] for k in audit.needed],
         "reaches_target": None
         if target is None
-        else bool(a["after"][-1] >= target if a["after"] else a["as_found"] >= target),
-        "shortfall": None if target is None else max(0, target - a["as_found"]),
-        "as_found_tl": a["as_found_tl"],
-        "after_tl": a["after_tl"],
-        "wall_share": a["wall_share"],
-        "flags": a["flags"],
+        else bool(audit.after[-1] >= target if len(audit.after) else audit.as_found >= target),
+        "shortfall": None if target is None else max(0, target - audit.as_found),
+        "designed_tl": _curve(a["designed_tl"], missing),
+        "as_found_tl": as_found_tl,
+        "after_tl": [_curve(r, missing) for r in a["after_tl"]],
+        "wall_share": float(sub.base @ weights) / total if total > 0 else 1.0,
+        "interactions": [{**x, "findings": [by_str[i] for i in x["findings"]]} for x in a["interactions"]],
+        "flags": list(dict.fromkeys([*audit.model_flags, *(f for fl in audit.flags for f in fl)])),
+        "designed": audit.designed,
     }
 
 
@@ -230,6 +311,7 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     target = wall.target_rating
     out: dict[str, Any] = {
         "v": ENGINE_VERSION,
+        "engine_version": _engine_version(),
         "wall": wall.pk,
         "scheme": scheme,
         "rating_name": RATING_NAMES.get(scheme, scheme),
@@ -242,38 +324,48 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     live = _live_findings(wall)
     statuses = {f.pk: f.status for f in live}
     try:
-        tl, area, leaks, meta = wall_inputs(wall, live, memo=memo)
+        inputs, meta = wall_inputs(wall, live, memo=memo)
     except ValueError as exc:
         out["error"] = str(exc)
         return out
-    if not np.isfinite(tl).any():
-        out["error"] = "The wall type has no TL curve yet, so no rating can be estimated."
-        return out
+    raw = np.array([np.nan if v is None else v for v in meta["wall_type_tl"]], dtype=float)
+    missing = np.zeros(raw.size, dtype=bool)
+    if not meta["layered"]:
+        if not np.isfinite(raw).any():
+            out["error"] = "The wall type has no TL curve yet, so no rating can be estimated."
+            return out
+        try:  # the ratings use measured bands only: a lab curve missing one of them has no rating
+            acoustics.rate(raw, scheme)
+        except acoustics.RatingError as exc:
+            out["error"] = f"No rating: {exc}"
+            return out
+        missing = ~np.isfinite(raw)
     ids = meta["finding_ids"]
-    by_id = dict(zip(ids, leaks, strict=True))
     pick = {
-        "walked": ids,
-        "reported": [i for i in ids if statuses[i] in (FindingStatus.OPEN, FindingStatus.REOPENED)],
-        "verified": [i for i in ids if statuses[i] != FindingStatus.VERIFIED],
+        "walked": list(range(len(ids))),
+        "reported": [
+            k for k, i in enumerate(ids) if statuses[i] in (FindingStatus.OPEN, FindingStatus.REOPENED)
+        ],
+        "verified": [k for k, i in enumerate(ids) if statuses[i] != FindingStatus.VERIFIED],
     }
     try:
+        model = acoustics.wall_model(**inputs)
         views = {
-            name: _view(tl, area, [by_id[i] for i in sel], sel, statuses, scheme, target)
-            for name, sel in pick.items()
+            name: _view(model, sel, ids, statuses, scheme, target, missing) for name, sel in pick.items()
         }
-        designed = int(acoustics.rate(tl, scheme))
-    except acoustics.RatingError as exc:
+    except (acoustics.RatingError, acoustics.GeometryError) as exc:
         out["error"] = f"No rating: {exc}"
         return out
     v = views["verified"]
     flags = list(dict.fromkeys([*meta["flags"], *views["walked"]["flags"]]))
-    text = {**acoustics.FLAG_TEXT, **EXTRA_FLAG_TEXT}
+    text = flag_texts()
+    designed = v["designed"]
     out.update(
         {
             "designed": designed,
-            "designed_terms": _terms(tl, scheme),
-            "designed_tl": [None if not math.isfinite(x) else float(x) for x in tl],
-            "area": area,
+            "designed_terms": _terms(v["designed_tl"], scheme),
+            "designed_tl": v["designed_tl"],
+            "area": inputs["area"],
             "net_area": meta["net_area"],
             "as_found": v["as_found"],
             "shortfall": v["shortfall"],
@@ -282,6 +374,7 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
             "order": v["order"],
             "after": v["after"],
             "needed": v["needed"],
+            "interactions": v["interactions"],
             "flags": flags,
             "flag_text": {f: text.get(f, f.replace("_", " ")) for f in flags},
             "unmodelled": meta["unmodelled"],
@@ -315,7 +408,10 @@ def audits_for_walls(walls: Iterable) -> dict[int, dict]:
         prefetch_related_objects(
             cold,
             Prefetch("openings", queryset=Opening.objects.filter(removed=False).order_by("id")),
-            Prefetch("findings", queryset=Finding.objects.filter(removed=False).order_by("id")),
+            Prefetch(
+                "findings",
+                queryset=Finding.objects.filter(removed=False).select_related("seal_point").order_by("id"),
+            ),
         )
         memo: dict = {}
         fresh = {}

@@ -319,6 +319,7 @@ TABLE: dict[str, dict[str, Rule]] = {
         "PATCH": R("edit", body=lambda s: {"location": "between 201 and 203"}),
         "DELETE": R("edit", ok=204),
     },
+    "api:wall-audit": {"GET": R("view")},
     "api:opening-list": {
         "GET": R("view"),
         "POST": R(
