@@ -121,7 +121,8 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict,
         :mod:`qa.audit.finding_leaks`), in the order of ``meta["finding_ids"]``.
     meta : dict
         ``finding_ids``, ``unmodelled`` ([{"finding": id, "reason": str}]), ``openings`` rows,
-        ``flags``, ``net_area`` (m^2), ``wall_type_tl`` (list, None for missing bands), ``layered``.
+        ``flags``, ``net_area`` (m^2), ``wall_type_tl`` (list, None for missing bands), ``layered``
+        (the construction is the wall type's layers), ``kinds`` (the record's kind of each finding).
 
     Raises
     ------
@@ -137,6 +138,12 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict,
     A finding the engine refuses (e.g. a missing batt on a wall type known only by its lab curve) is
     listed in ``unmodelled`` with the engine's reason and left out of the model.
     """
+    inputs, meta, _model = _inputs_and_model(wall, findings, memo)
+    return inputs, meta
+
+
+def _inputs_and_model(wall, findings=None, memo: dict | None = None) -> tuple[dict, dict, Any]:
+    """:func:`wall_inputs` and the model it built (None when no finding is modelled)."""
     import acoustics
 
     scheme = wall.rating_scheme or "stc"
@@ -178,9 +185,10 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict,
         "findings": specs,
     }
     # Findings the engine refuses on this wall leave the model one by one, each with its reason.
+    model = None
     while specs:
         try:
-            acoustics.wall_model(**inputs)
+            model = acoustics.wall_model(**inputs)
             break
         except acoustics.GeometryError as exc:
             m = _FINDING_INDEX.match(str(exc))
@@ -191,6 +199,7 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict,
             del specs[i], ids[i]
     if unmodelled:
         flags.append("not_modelled")
+    kind_of = {f.pk: f.kind for f in findings}
     meta = {
         "finding_ids": ids,
         "unmodelled": unmodelled,
@@ -199,16 +208,17 @@ def wall_inputs(wall, findings=None, *, memo: dict | None = None) -> tuple[dict,
         "net_area": ctx.area - used,
         "wall_type_tl": [finite(float(v)) for v in ctx.raw_tl],
         "layered": ctx.layered,
+        "kinds": [kind_of[i] for i in ids],
     }
-    return inputs, meta
+    return inputs, meta, model
 
 
 def wall_model_for(wall, findings=None, *, memo: dict | None = None):
     """The wall's whole model (:class:`acoustics.WallModel`) and the meta of :func:`wall_inputs`."""
     import acoustics
 
-    inputs, meta = wall_inputs(wall, findings, memo=memo)
-    return acoustics.wall_model(**inputs), meta
+    inputs, meta, model = _inputs_and_model(wall, findings, memo)
+    return model if model is not None else acoustics.wall_model(**inputs), meta
 
 
 # --------------------------------------------------------------------------- audit summaries
@@ -248,7 +258,7 @@ def _curve(tl, missing: np.ndarray) -> list:
     return [None if (miss or v is None) else v for v, miss in zip(tl, missing, strict=True)]
 
 
-def _view(model, keep, ids, statuses, scheme, target, missing) -> dict:
+def _view(model, keep, ids, statuses, scheme, target, missing, kinds) -> dict:
     import acoustics
     from acoustics.ratings import rating_weights
 
@@ -268,7 +278,8 @@ def _view(model, keep, ids, statuses, scheme, target, missing) -> dict:
             "in_order": in_order[fid],
             "open_area_500": float(sub.parts[j].linear[I500]),
             "power_share": float(audit.power_share[j]),
-            "kind": sub.parts[j].kind,
+            "kind": kinds[keep[j]],
+            "model_kind": sub.parts[j].kind,
             "label": sub.parts[j].label,
             "status": statuses[fid],
             "path": audit.paths[j],
@@ -324,7 +335,7 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     live = _live_findings(wall)
     statuses = {f.pk: f.status for f in live}
     try:
-        inputs, meta = wall_inputs(wall, live, memo=memo)
+        inputs, meta, model = _inputs_and_model(wall, live, memo)
     except ValueError as exc:
         out["error"] = str(exc)
         return out
@@ -349,9 +360,11 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
         "verified": [k for k, i in enumerate(ids) if statuses[i] != FindingStatus.VERIFIED],
     }
     try:
-        model = acoustics.wall_model(**inputs)
+        if model is None:
+            model = acoustics.wall_model(**inputs)
         views = {
-            name: _view(model, sel, ids, statuses, scheme, target, missing) for name, sel in pick.items()
+            name: _view(model, sel, ids, statuses, scheme, target, missing, meta["kinds"])
+            for name, sel in pick.items()
         }
     except (acoustics.RatingError, acoustics.GeometryError) as exc:
         out["error"] = f"No rating: {exc}"

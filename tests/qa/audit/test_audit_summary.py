@@ -200,6 +200,7 @@ def test_kinds_map_to_engine_specs(world):
         }
         assert spec == {**common, **expected}, name
         assert rows[finding.pk]["path_kind"] == path_kind, name
+        assert rows[finding.pk]["kind"] == finding.kind and rows[finding.pk]["model_kind"] == expected["kind"]
 
 
 def test_predicted_wall_type_uses_layers_and_lab_type_cannot_model_a_bridge(world):
