@@ -238,6 +238,12 @@ REST_FRAMEWORK = {
         "rest_framework.authentication.TokenAuthentication",
     ],
     "DEFAULT_PERMISSION_CLASSES": ["rest_framework.permissions.IsAuthenticated"],
+    # JSON nested deeper than 64 levels is a 400 before it reaches the decoder (qa/api/parsers.py).
+    "DEFAULT_PARSER_CLASSES": [
+        "qa.api.parsers.BoundedJSONParser",
+        "rest_framework.parsers.FormParser",
+        "rest_framework.parsers.MultiPartParser",
+    ],
     "DEFAULT_PAGINATION_CLASS": "qa.api.filters.Pages",
     "PAGE_SIZE": 100,
     "DEFAULT_SCHEMA_CLASS": "drf_spectacular.openapi.AutoSchema",
@@ -253,6 +259,8 @@ SPECTACULAR_SETTINGS = {
     "Every object is reached through its job; lengths are in the job's units (see each job's `units`).",
     "VERSION": "1",
     "SERVE_INCLUDE_SCHEMA": False,
+    # The schema maps every route of the record: only a signed-in user reads it (the docs page too).
+    "SERVE_PERMISSIONS": ["rest_framework.permissions.IsAuthenticated"],
     "COMPONENT_SPLIT_REQUEST": True,
     "ENUM_NAME_OVERRIDES": {"GapKindEnum": "qa.choices.GapKind", "OpeningKindEnum": "qa.choices.OpeningKind"},
 }

@@ -7,12 +7,14 @@ from rest_framework import status
 from rest_framework.authtoken.models import Token
 from rest_framework.authtoken.views import ObtainAuthToken
 from rest_framework.exceptions import Throttled
+from rest_framework.parsers import FormParser, MultiPartParser
 from rest_framework.permissions import IsAuthenticated
 from rest_framework.response import Response
 from rest_framework.throttling import ScopedRateThrottle
 from rest_framework.views import APIView
 
 from .. import login_throttle
+from .parsers import BoundedJSONParser
 
 
 class ObtainToken(ObtainAuthToken):
@@ -25,6 +27,8 @@ class ObtainToken(ObtainAuthToken):
 
     throttle_classes = [ScopedRateThrottle]
     throttle_scope = "login"
+    # DRF's token view names its own parsers; keep the depth-bounded JSON one (qa/api/parsers.py).
+    parser_classes = [BoundedJSONParser, FormParser, MultiPartParser]
 
     def post(self, request, *args, **kwargs):
         username = str(request.data.get("username", ""))[:150] if hasattr(request.data, "get") else ""

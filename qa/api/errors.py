@@ -35,4 +35,7 @@ def exception_handler(exc, context):
         exc = exceptions.PermissionDenied(str(exc) or None)
     elif isinstance(exc, Http404):
         exc = exceptions.NotFound(str(exc) or None)
+    elif isinstance(exc, RecursionError):
+        # A view with its own JSON parser met a body nested too deep: the client's fault, not ours.
+        exc = exceptions.ParseError("JSON parse error - nested too deep")
     return drf_handler(exc, context)

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import copy
+
 import math
 
 from django.contrib.auth import get_user_model
@@ -77,10 +79,38 @@ class JobSerializer(serializers.ModelSerializer):
         return member.trade or None if member else None
 
 
+#: The one answer for a name that cannot be added, whether no account has it or the account cannot
+#: join: an inspector learns nothing about accounts outside their jobs from it.
+NOT_ADDABLE = "no account by that name can be added to this job"
+
+
+class MemberUsernameField(serializers.SlugRelatedField):
+    """The member's account by username: an active account only, with one answer for every refusal.
+
+    On an existing membership the name cannot change; a different name is refused without looking
+    it up, so the answer does not depend on whether the name exists.
+    """
+
+    default_error_messages = {"does_not_exist": NOT_ADDABLE, "invalid": NOT_ADDABLE}
+
+    def __init__(self, **kwargs):
+        super().__init__(
+            slug_field="username", queryset=get_user_model().objects.filter(is_active=True), **kwargs
+        )
+
+    def to_internal_value(self, data):
+        instance = getattr(self.parent, "instance", None)
+        if instance is not None:
+            if data != instance.user.username:
+                raise serializers.ValidationError("cannot be changed; add a new member instead")
+            return instance.user
+        if not isinstance(data, str) or not 0 < len(data) <= 150:
+            self.fail("invalid")
+        return super().to_internal_value(data)
+
+
 class MemberSerializer(serializers.ModelSerializer):
-    username = serializers.SlugRelatedField(
-        source="user", slug_field="username", queryset=get_user_model().objects.all()
-    )
+    username = MemberUsernameField(source="user")
     name = serializers.SerializerMethodField()
 
     class Meta:
@@ -100,8 +130,6 @@ class MemberSerializer(serializers.ModelSerializer):
             raise serializers.ValidationError({"trade": ["only crew members have a trade"]})
         job = self.context["job"]
         user = attrs.get("user")
-        if user and self.instance is not None and user != self.instance.user:
-            raise serializers.ValidationError({"username": ["cannot be changed; add a new member instead"]})
         if user and self.instance is None and Member.objects.filter(job=job, user=user).exists():
             raise serializers.ValidationError({"username": ["is already a member of this job"]})
         return attrs
@@ -263,6 +291,8 @@ class SealPointSerializer(serializers.ModelSerializer):
             "version",
         ]
         read_only_fields = ["id", "wall", "template_key", "checked_at", "version", "gap"]
+        # Free text is bounded like every note (the model's TextFields are not).
+        extra_kwargs = {"correct": {"max_length": 2000}, "usual_defect": {"max_length": 2000}}
 
 
 class FindingSerializer(serializers.ModelSerializer):
@@ -322,6 +352,17 @@ class FindingSerializer(serializers.ModelSerializer):
             "fixed_at",
             "verified_at",
         ]
+
+    #: The fields built from the model once per process; each serializer gets its own copies.
+    _built_fields: dict | None = None
+
+    def get_fields(self):
+        # ModelSerializer re-reads the model's metadata for every instance; the walk's sync makes one
+        # serializer per operation, so build the unbound fields once and hand out deep copies.
+        cls = type(self)
+        if cls.__dict__.get("_built_fields") is None:
+            cls._built_fields = super().get_fields()
+        return copy.deepcopy(cls._built_fields)
 
     def __init__(self, *args, **kwargs):
         super().__init__(*args, **kwargs)

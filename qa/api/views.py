@@ -14,7 +14,7 @@ from rest_framework.response import Response
 from .. import actions
 from ..access import membership, require
 from ..actions.parse import parse_version
-from ..choices import FindingStatus, SealStatus
+from ..choices import FindingStatus, Role, SealStatus
 from ..converters import ID_REGEX
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from . import serializers as s
@@ -102,6 +102,23 @@ class MemberViewSet(
 
     @transaction.atomic
     def perform_update(self, serializer):
+        # Updates of one job's members queue on the job row, so two inspectors deactivating each
+        # other at once cannot both pass the check below.
+        Job.objects.select_for_update().filter(pk=self.job.pk).first()
+        current = Member.objects.get(pk=serializer.instance.pk)
+        data = serializer.validated_data
+        stays = data.get("active", current.active) and data.get("role", current.role) == Role.INSPECTOR
+        if current.active and current.role == Role.INSPECTOR and not stays:
+            others = (
+                Member.objects.filter(job=self.job, role=Role.INSPECTOR, active=True, user__is_active=True)
+                .exclude(pk=current.pk)
+                .exists()
+            )
+            if not others:
+                field = "active" if not data.get("active", True) else "role"
+                raise ValidationError(
+                    {field: ["the job's last active inspector stays: add another inspector first"]}
+                )
         member = serializer.save()
         self.record(
             "member.changed", member, {"role": member.role, "trade": member.trade, "active": member.active}
@@ -371,10 +388,17 @@ class FindingViewSet(
                     self.actor(), finding, dict(serializer.validated_data), base
                 )
 
-    @transaction.atomic
     def perform_destroy(self, finding):
-        finding = Finding.objects.select_for_update().get(pk=finding.pk)
-        actions.remove_finding(self.actor(), finding)
+        # An optional body {"note", "version"}: the note is held to the same 2000 characters as
+        # every other note, the version the client saw is checked like an edit's.
+        body = s.NoteSerializer(data=self.request.data if self.request.data else {})
+        body.is_valid(raise_exception=True)
+        with transaction.atomic():
+            finding = Finding.objects.select_for_update().get(pk=finding.pk)
+            with api_names():
+                actions.remove_finding(
+                    self.actor(), finding, body.validated_data["note"], body.validated_data.get("version")
+                )
 
     def _step(self, request, name: str):
         body = s.NoteSerializer(data=request.data)

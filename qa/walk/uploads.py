@@ -11,18 +11,21 @@ from __future__ import annotations
 import hashlib
 import re
 import uuid
+from typing import Any
 
 from django.conf import settings
 from django.db import transaction
-from django.utils.dateparse import parse_datetime
+from django.db.models import Count, Sum
 
 from .. import actions
 from ..access import require
 from ..actions import Actor, Reject
+from ..actions.parse import parse_id, parse_moment, parse_uuid
 from ..choices import PhotoPurpose, Role
-from ..models import Finding, Member, Photo, PhotoUpload, Wall
+from ..models import Finding, Job, Member, Photo, PhotoUpload, Wall
 
 SHA256 = re.compile(r"^[0-9a-f]{64}$")
+CAPTION_MAX = 200
 
 
 def _uuid(value, field: str) -> uuid.UUID:
@@ -36,14 +39,73 @@ def state(upload: PhotoUpload) -> dict:
     return {"id": str(upload.id), "offset": upload.offset, "total_bytes": upload.total_bytes, "done": False}
 
 
-def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, bool]:
+class UploadLimit(Reject):
+    """Opening one more upload would pass a limit on unfinished uploads (the API answers 429)."""
+
+
+def _pending(uploads) -> tuple[int, int]:
+    totals = uploads.aggregate(n=Count("pk"), size=Sum("total_bytes"))
+    return totals["n"] or 0, totals["size"] or 0
+
+
+def check_limits(member: Member, total: int) -> None:
+    """Refuse a new upload of ``total`` bytes past a person's or a job's limits on unfinished uploads.
+
+    Counted over the uploads still open (the bytes wait in the database until they finish): per
+    person across all their jobs, and per job across all its members, by the sizes declared.
+    """
+    mib = 1024 * 1024
+    count, size = _pending(PhotoUpload.objects.filter(user=member.user))
+    if count + 1 > settings.UPLOAD_MAX_OPEN_PER_USER:
+        raise UploadLimit(
+            {
+                "uploads": [
+                    f"at most {settings.UPLOAD_MAX_OPEN_PER_USER} unfinished uploads per person "
+                    "(UPLOAD_MAX_OPEN_PER_USER); finish the ones open first"
+                ]
+            }
+        )
+    if size + total > settings.UPLOAD_MAX_PENDING_BYTES_PER_USER:
+        raise UploadLimit(
+            {
+                "total_bytes": [
+                    f"at most {settings.UPLOAD_MAX_PENDING_BYTES_PER_USER / mib:g} MB in unfinished uploads "
+                    f"per person (UPLOAD_MAX_PENDING_BYTES_PER_USER); {size} bytes are waiting"
+                ]
+            }
+        )
+    count, size = _pending(PhotoUpload.objects.filter(job=member.job))
+    if count + 1 > settings.UPLOAD_MAX_OPEN_PER_JOB:
+        raise UploadLimit(
+            {
+                "uploads": [
+                    f"at most {settings.UPLOAD_MAX_OPEN_PER_JOB} unfinished uploads per job "
+                    "(UPLOAD_MAX_OPEN_PER_JOB); finish the ones open first"
+                ]
+            }
+        )
+    if size + total > settings.UPLOAD_MAX_PENDING_BYTES_PER_JOB:
+        raise UploadLimit(
+            {
+                "total_bytes": [
+                    f"at most {settings.UPLOAD_MAX_PENDING_BYTES_PER_JOB / mib:g} MB in unfinished uploads "
+                    f"per job (UPLOAD_MAX_PENDING_BYTES_PER_JOB); {size} bytes are waiting"
+                ]
+            }
+        )
+
+
+def open_upload(member: Member, data: Any, device_id: str = "") -> tuple[dict, bool]:
     """Open (or find again) the upload of photo ``data["id"]``; return its state and whether it is new.
 
     ``data``: id (UUID), finding (the finding's client id) or wall (id), purpose, total_bytes,
-    sha256 (hex), captured_at (ISO 8601, optional), caption (optional).
+    sha256 (hex), captured_at (ISO 8601, optional), caption (optional). Every field is checked before
+    anything is written; a new upload past a limit raises :class:`UploadLimit`.
     """
+    if not isinstance(data, dict):
+        raise Reject({"non_field_errors": ["the body must be a JSON object"]})
     job = member.job
-    photo_id = _uuid(data.get("id"), "id")
+    photo_id = parse_uuid(data.get("id"), "id")
     photo = Photo.objects.filter(pk=photo_id).first()
     if photo is not None:
         if photo.job_id != job.id:
@@ -64,51 +126,54 @@ def open_upload(member: Member, data: dict, device_id: str = "") -> tuple[dict, 
     total = data.get("total_bytes")
     if isinstance(total, bool) or not isinstance(total, int) or not 0 < total <= settings.PHOTO_MAX_BYTES:
         raise Reject({"total_bytes": [f"must be a whole number from 1 to {settings.PHOTO_MAX_BYTES}"]})
-    digest = str(data.get("sha256", "")).lower()
-    if not SHA256.match(digest):
+    digest = data.get("sha256")
+    if not isinstance(digest, str) or not SHA256.match(digest.lower()):
         raise Reject({"sha256": ["must be 64 hexadecimal digits"]})
+    digest = digest.lower()
     purpose = data.get("purpose") or PhotoPurpose.DEFECT
-    if purpose not in PhotoPurpose.values:
+    if not isinstance(purpose, str) or purpose not in PhotoPurpose.values:
         raise Reject({"purpose": [f"must be one of {', '.join(PhotoPurpose.values)}"]})
+    captured = data.get("captured_at")
+    when = None if captured in (None, "") else parse_moment(captured, "captured_at")
+    caption = data.get("caption") or ""
+    if not isinstance(caption, str) or len(caption) > CAPTION_MAX:
+        raise Reject({"caption": [f"must be text of at most {CAPTION_MAX} characters"]})
     finding = None
     if data.get("finding"):
         finding = Finding.objects.filter(
-            client_id=_uuid(data["finding"], "finding"), job=job, removed=False
+            client_id=parse_uuid(data["finding"], "finding"), job=job, removed=False, wall__removed=False
         ).first()
         if finding is None:
             raise Reject({"finding": ["no such finding in this job (sync the finding first)"]})
         wall = finding.wall
     else:
-        wall = Wall.objects.filter(
-            pk=data.get("wall") if str(data.get("wall", "")).isdigit() else None, job=job, removed=False
-        ).first()
-        if wall is None:
+        if data.get("wall") in (None, ""):
             raise Reject({"wall": ["give the wall or the finding the photo shows"]})
+        wall = Wall.objects.filter(pk=parse_id(data.get("wall"), "wall"), job=job, removed=False).first()
+        if wall is None:
+            raise Reject({"wall": ["no such wall in this job"]})
     require(member, "fix", trade=finding.trade if finding else None)  # another trade's finding: 403
     if member.role == Role.CREW:
         if finding is None:
             raise Reject({"finding": ["crew photos show the fix of a finding"]})
         purpose = PhotoPurpose.FIX
-    captured = data.get("captured_at")
-    when = parse_datetime(captured) if isinstance(captured, str) else None
-    if captured and when is None:
-        raise Reject({"captured_at": ["must be an ISO 8601 date-time"]})
-    caption = data.get("caption") or ""
-    if not isinstance(caption, str) or len(caption) > 200:
-        raise Reject({"caption": ["must be text of at most 200 characters"]})
-    upload = PhotoUpload.objects.create(
-        id=photo_id,
-        job=job,
-        wall=wall,
-        finding=finding,
-        purpose=purpose,
-        captured_at=when,
-        caption=caption,
-        total_bytes=total,
-        sha256=digest,
-        user=member.user,
-        device_id=str(device_id)[:64],
-    )
+    with transaction.atomic():
+        # Opens of one job queue here, so two at once cannot both slip under a limit.
+        Job.objects.select_for_update().filter(pk=job.pk).first()
+        check_limits(member, total)
+        upload = PhotoUpload.objects.create(
+            id=photo_id,
+            job=job,
+            wall=wall,
+            finding=finding,
+            purpose=purpose,
+            captured_at=when,
+            caption=caption,
+            total_bytes=total,
+            sha256=digest,
+            user=member.user,
+            device_id=str(device_id)[:64],
+        )
     return state(upload), True
 
 

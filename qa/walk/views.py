@@ -14,17 +14,26 @@ from drf_spectacular.types import OpenApiTypes
 from drf_spectacular.utils import extend_schema
 from rest_framework import status
 from rest_framework.exceptions import ValidationError
-from rest_framework.parsers import BaseParser, JSONParser
+from rest_framework.parsers import BaseParser
 from rest_framework.response import Response
 from rest_framework.views import APIView
 
 from ..access import membership, require
 from ..actions import Actor, Reject
+from ..api.parsers import BoundedJSONParser
 from ..models import Conflict, Job
 from ..photos import PhotoError
 from .bundle import build_bundle
 from .sync import apply_batch, conflict_data, resolve
-from .uploads import OffsetMismatch, append_chunk, finish_upload, open_upload, photo_data, upload_state
+from .uploads import (
+    OffsetMismatch,
+    UploadLimit,
+    append_chunk,
+    finish_upload,
+    open_upload,
+    photo_data,
+    upload_state,
+)
 
 #: Largest chunk accepted in one request (the walk sends 256 KiB).
 MAX_CHUNK = 2 * 1024 * 1024
@@ -74,7 +83,7 @@ class SyncView(WalkView):
     """POST ``{"device_id": str, "ops": [...]}``: apply each operation exactly once, answer each."""
 
     right = "fix"  # inspectors and crews send operations; each one checks its own right
-    parser_classes = [JSONParser]
+    parser_classes = [BoundedJSONParser]
 
     def post(self, request, job_pk: int):
         body = request.data if isinstance(request.data, dict) else {}
@@ -128,11 +137,14 @@ class UploadOpenView(WalkView):
     """POST ``{id, finding | wall, purpose, total_bytes, sha256, captured_at}`` → the upload's offset."""
 
     right = "fix"
-    parser_classes = [JSONParser]
+    parser_classes = [BoundedJSONParser]
 
     def post(self, request, job_pk: int):
         try:
             answer, created = open_upload(self.member, request.data, self.device_id())
+        except UploadLimit as exc:
+            # Not the device's fault for good: it may open more once its open uploads finish.
+            return _bad(exc, status.HTTP_429_TOO_MANY_REQUESTS)
         except Reject as exc:
             return _bad(exc)
         return Response(answer, status=status.HTTP_201_CREATED if created else status.HTTP_200_OK)
@@ -153,7 +165,7 @@ class UploadChunkView(WalkView):
 
     def put(self, request, job_pk: int, photo_id):
         raw = request.query_params.get("offset", "")
-        if not raw.isdigit():
+        if not (raw.isascii() and raw.isdigit() and len(raw) <= 12):
             return Response({"offset": ["give the chunk's start as ?offset=N"]}, status=400)
         chunk = request.data if isinstance(request.data, bytes) else b""
         if not chunk:

@@ -361,7 +361,7 @@ TABLE: dict[str, dict[str, Rule]] = {
     "api:event-list": {"GET": R("view")},
     "api:token": {"POST": R("public", body=credentials, with_user=True)},
     "api:token-revoke": {"POST": R("auth", ok=204)},
-    "api:schema": {"GET": R("public")},
+    "api:schema": {"GET": R("auth")},  # the map of every route: signed-in users only
     "api:docs": {"GET": R("auth")},
     # the walk (qa/views/walk_urls.py)
     "qa:walk": {"GET": R("auth")},
@@ -728,3 +728,15 @@ def test_media_root_is_not_served(scene, client_for, settings):
 def test_photo_ids_are_random_uuids(scene):
     """Photo URLs are unguessable: a random (version 4) UUID made by the device or the server."""
     assert uuid.UUID(str(scene.photo.pk)).version == 4
+
+
+def test_api_schema_and_docs_need_a_signed_in_user(scene, client_for):
+    """The schema maps every route of the record: anonymous gets 403 (the docs page: sign in first)."""
+    anonymous = client_for(None)
+    assert anonymous.get("/api/schema/").status_code == 403
+    docs = anonymous.get("/api/docs/")
+    assert docs.status_code == 302 and docs["Location"].startswith(reverse("qa:login"))
+    member = client_for(scene.world.electrician)
+    schema = member.get("/api/schema/", HTTP_ACCEPT="application/vnd.oai.openapi+json")
+    assert schema.status_code == 200 and "/api/jobs/{job_pk}/findings/" in schema.json()["paths"]
+    assert member.get("/api/docs/").status_code == 200

@@ -62,7 +62,7 @@ RULES = [
     ({"username": "plum", "role": "owner", "trade": "plumbing"}, "trade", "only crew members have a trade"),
     ({"username": "plum", "role": "boss"}, "role", "not a valid choice"),
     ({"username": "plum", "role": "crew", "trade": "roofing"}, "trade", "not a valid choice"),
-    ({"username": "nobody", "role": "owner"}, "username", "does not exist"),
+    ({"username": "nobody", "role": "owner"}, "username", "no account by that name can be added"),
     ({"username": "elec", "role": "owner"}, "username", "already a member of this job"),
     ({"role": "owner"}, "username", "required"),
     ({"username": "plum", "role": "owner", "active": "perhaps"}, "active", "valid boolean"),
@@ -137,3 +137,65 @@ def test_who_manages_members(world, api, role, newcomer):
     added = Member.objects.filter(user=newcomer).exists()
     assert added is (role == "inspector") and owner.active is (role != "inspector")
     assert Event.objects.count() == (2 if role == "inspector" else 0)
+
+
+# --- no account oracle, and a job always keeps an inspector (issue: consistency and small leaks) ----
+
+
+def test_adding_answers_alike_for_an_unknown_name_and_an_account_that_cannot_join(world, api, newcomer):
+    # The answer must not tell an inspector whether a name has an account elsewhere.
+    get_user_model().objects.create_user("retired", password="x-y-z-123456", is_active=False)
+    client = api(world.inspector)
+    answers = [
+        client.post(url(world.job), {"username": name, "role": "owner"}, format="json")
+        for name in ("nobody", "retired", "x" * 151, 12)
+    ]
+    assert [r.status_code for r in answers] == [400] * 4
+    assert all(
+        r.json() == {"username": ["no account by that name can be added to this job"]} for r in answers
+    )
+    assert not Member.objects.filter(user__username__in=["nobody", "retired"]).exists()
+
+
+def test_renaming_a_membership_answers_alike_for_any_other_name(world, api):
+    member = member_of(world, world.electrician)
+    client = api(world.inspector)
+    answers = [
+        client.patch(url(world.job, member.pk), {"username": name}, format="json").json()
+        for name in ("dry", "out", "nobody")  # a member here, an account elsewhere, no account
+    ]
+    assert answers == [{"username": ["cannot be changed; add a new member instead"]}] * 3
+
+
+def test_last_active_inspector_cannot_deactivate_themselves(world, api):
+    me = member_of(world, world.inspector)
+    client = api(world.inspector)
+    r = client.patch(url(world.job, me.pk), {"active": False}, format="json")
+    assert r.status_code == 400 and "last active inspector" in r.json()["active"][0]
+    r = client.patch(url(world.job, me.pk), {"role": "owner"}, format="json")
+    assert r.status_code == 400 and "last active inspector" in r.json()["role"][0]
+    me.refresh_from_db()
+    assert (me.active, me.role) == (True, "inspector") and not Event.objects.exists()
+
+
+def test_an_inspector_may_step_down_once_another_is_active(world, api, newcomer):
+    client = api(world.inspector)
+    r = client.post(url(world.job), {"username": "plum", "role": "inspector"}, format="json")
+    assert r.status_code == 201
+    me = member_of(world, world.inspector)
+    assert client.patch(url(world.job, me.pk), {"active": False}, format="json").status_code == 200
+    # The newcomer is now the last one: they cannot leave either.
+    theirs = member_of(world, newcomer)
+    r = api(newcomer).patch(url(world.job, theirs.pk), {"active": False}, format="json")
+    assert r.status_code == 400
+    theirs.refresh_from_db()
+    assert theirs.active
+
+
+def test_an_inspector_whose_account_is_disabled_does_not_count_as_the_other_one(world, api, newcomer):
+    Member.objects.create(job=world.job, user=newcomer, role="inspector")
+    newcomer.is_active = False
+    newcomer.save()
+    me = member_of(world, world.inspector)
+    r = api(world.inspector).patch(url(world.job, me.pk), {"active": False}, format="json")
+    assert r.status_code == 400
