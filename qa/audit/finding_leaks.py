@@ -106,6 +106,7 @@ def _lab_construction(wall_type, layers: dict | None) -> tuple[dict, list[str]]:
     if layers is not None:
         leaves = len(layers.get("leaves") or ()) or leaves
     spec: dict = {"tl": tl, "leaves": leaves, "thickness": float(wall_type.thickness_m)}
+    flags = ["tl_gaps_filled"] if filled else []
     if leaves == 2 and layers is not None:
         cav = layers.get("cavity") or {}
         if cav.get("depth"):
@@ -113,7 +114,9 @@ def _lab_construction(wall_type, layers: dict | None) -> tuple[dict, list[str]]:
         spacing = (layers.get("connection") or {}).get("spacing")
         if spacing:
             spec["stud_spacing"] = spacing
-    return spec, ["tl_gaps_filled"] if filled else []
+    if leaves == 2 and not (spec.get("cavity") or {}).get("absorber"):
+        flags.append("cavity_fill_unknown")
+    return spec, flags
 
 
 class WallContext:

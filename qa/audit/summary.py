@@ -67,6 +67,8 @@ EXTRA_FLAG_TEXT = {
     "tl_gaps_filled": "bands missing from a lab curve were filled from the nearest measured band for "
     "the model (the ratings use measured bands only)",
     "lab_curve": "wall known only by its lab curve",
+    "cavity_fill_unknown": "the wall type's layers do not say what fills the cavity: taken as empty, the "
+    "cautious case for openings joined through it; enter the layers to count the fill",
 }
 
 RATING_NAMES = {"stc": "STC", "rw": "Rw"}

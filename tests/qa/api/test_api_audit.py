@@ -70,6 +70,7 @@ def test_audit_of_a_wall_matches_the_engine(world, api):
     assert body["engine_version"] == acoustics.wall_audit.ENGINE_VERSION
     assert body["audit_version"] and body["error"] is None
     assert set(body["flags"]) <= set(body["flag_text"]) and "lab_curve_split" in body["flags"]
+    assert "cavity_fill_unknown" in body["flags"]  # a lab-curve wall type without layers: empty cavity taken
 
 
 def test_other_jobs_wall_is_404(world, api):

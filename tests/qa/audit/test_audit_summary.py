@@ -216,6 +216,7 @@ def test_predicted_wall_type_uses_layers_and_lab_type_cannot_model_a_bridge(worl
     s = summary.audit_summary(wall)
     rows = {r["finding"]: r for r in s["rows"]}
     assert rows[bridge.pk]["path_kind"] == "structural"
+    assert "cavity_fill_unknown" not in s["flags"]  # the layers say the cavity holds 89 mm of fill
     # Issue 13 check, method notes 5.3 and check case C20: a 50 mm hole in one face of a filled cavity
     # costs at most 1 point; the same hole through both faces (a see-through passage) at least 8.
     assert rows[one_face.pk]["alone"] <= 1
