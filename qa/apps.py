@@ -14,3 +14,4 @@ class QaConfig(AppConfig):
 
         register_heif_opener()
         from . import signals  # noqa: F401  (cache invalidation)
+        from .field import stamps  # noqa: F401  (field-prediction cache invalidation)

@@ -13,7 +13,7 @@ from acoustics.building_kinds import predict_wall
 from acoustics.field import FieldInputError
 
 from ..field.choices import BuildingKind, TestStandard
-from ..field.inputs import MAX_VOLUME_M3, check_rooms, junctions_of, rooms_of
+from ..field.inputs import MAX_VOLUME_M3, check_rooms, junctions_of, rooms_of, wall_structure
 from ..field.measurements import clean_bands, compute_results, parse_csv
 from ..models import FieldTest, JunctionOverride, RoomPair
 from .fields import FiniteFloatField
@@ -84,6 +84,7 @@ class JunctionOverrideSerializer(serializers.ModelSerializer):
                 rooms.receiving,
                 building_kind=job.building_kind,
                 junctions=junctions_of([trial], job.building_kind),
+                **wall_structure(wall),
             )
         except FieldInputError as exc:
             raise serializers.ValidationError({"kind": [f"{exc.field}: {exc.rule}"]}) from None

@@ -18,8 +18,7 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from typing import Any
 
-from acoustics.building_kinds import default_junctions
-from acoustics.field import FieldInputError
+from acoustics.building_kinds import default_junctions, wall_defaults
 from acoustics.field_inputs import Junction, Room
 
 #: Depth of a default room perpendicular to the wall, m (a bedroom or living room).
@@ -138,6 +137,13 @@ def field_target(wall, pair=None) -> dict[str, Any] | None:
     return None
 
 
-def error_dict(exc: FieldInputError) -> dict[str, list[str]]:
-    """A 400 body from an engine input error: {field: [rule]}."""
-    return {exc.field: [exc.rule]}
+def wall_structure(wall) -> dict[str, Any]:
+    """The separating wall's structural data for the engine, from its wall type's construction.
+
+    A masonry wall is heavy (the concrete-masonry kind's 190 mm block: 220 kg/m², fc 120 Hz); every
+    framed construction (studs, channels, shaft wall) is lightweight (25 kg/m²), whatever the
+    building kind: a steel-stud partition in a concrete building is still a lightweight wall.
+    """
+    kind = "concrete_masonry" if wall.wall_type.construction == "masonry" else "wood_frame"
+    d = wall_defaults(kind)
+    return {"wall_mass": d["mass"], "wall_kind": d["kind"], "wall_fc": d["fc"]}

@@ -15,7 +15,7 @@ from typing import Any
 import numpy as np
 from django.db.models import Count, Q
 
-from ..models import FieldTest, Finding, Wall
+from ..models import Finding, Wall
 from .inputs import CAUTION
 from .prediction import DESCRIPTOR_NAMES, field_for_walls, headline
 
@@ -82,7 +82,7 @@ def job_test_plan(job) -> dict[str, Any]:
         .annotate(n=Count("id", filter=Q(removed=False)))
         .values_list("wall_id", "n")
     )
-    tested = set(FieldTest.objects.filter(wall__job=job).values_list("wall_id", flat=True))
+    tested = {pk for pk, res in fields.items() if res.get("tests")}
     rows = [_row(w, fields[w.pk], audits[w.pk], counts, tested) for w in walls]
     by_walk = sorted(rows, key=lambda r: (-r["walk_cost"], -r["findings"], r["tag"]))
     for i, r in enumerate(by_walk, start=1):
@@ -139,26 +139,24 @@ def measured_summary(job) -> dict[str, Any]:
     """
     from .presentation import compare, pair_for
 
-    tests = list(
-        FieldTest.objects.filter(wall__job=job, wall__removed=False).select_related("wall__wall_type")
-    )
-    walls = {t.wall_id: t.wall for t in tests}
-    fields = field_for_walls(list(walls.values()), job.building_kind)
+    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
+    fields = field_for_walls(walls, job.building_kind)
     points, far = [], []
-    for t in tests:
-        pair = pair_for(fields[t.wall_id], t)
-        target = pair["target"] if pair else None
-        descriptor = DESCRIPTOR_NAMES[target["descriptor"] if target else "astc"]
-        rows = {r["name"]: r for r in compare(t, pair)}
-        row = rows.get(descriptor) or next(iter(rows.values()), None)
-        if row is None or row["difference"] is None:
-            continue
-        point = {"wall": t.wall.tag, "wall_id": t.wall_id, "test": t.pk, **row}
-        points.append(point)
-        if row["difference"] <= -FAR_BELOW_DB:
-            share = pair["states"]["now"]["share_by_route"]
-            top = max(share, key=share.get)
-            far.append({**point, "look_for": LOOK_FOR.get(top, top)})
+    for w in walls:
+        for t in fields[w.pk].get("tests", []):
+            pair = pair_for(fields[w.pk], t)
+            target = pair["target"] if pair else None
+            descriptor = DESCRIPTOR_NAMES[target["descriptor"] if target else "astc"]
+            rows = {r["name"]: r for r in compare(t, pair)}
+            row = rows.get(descriptor) or next(iter(rows.values()), None)
+            if row is None or row["difference"] is None:
+                continue
+            point = {"wall": w.tag, "wall_id": w.pk, "test": t["id"], **row}
+            points.append(point)
+            if row["difference"] <= -FAR_BELOW_DB:
+                share = pair["states"]["now"]["share_by_route"]
+                top = max(share, key=share.get)
+                far.append({**point, "look_for": LOOK_FOR.get(top, top)})
     diffs = np.array([p["difference"] for p in points], float)
     return {
         "points": points,

@@ -7,9 +7,9 @@ the verified view's (only verified fixes count: the wall now). The engine
 as the direct path and what the walk's findings add to it as an airborne path of transmission area
 S (τ_state − τ_designed) per band, so each path's share shows how much of the sound the findings let
 through beside the flanking paths. Rooms, junctions and the building kind come from
-:mod:`qa.field.inputs`. Results are cached through Django's cache, keyed by the audit's key (its
-stamps change with any finding, opening, wall or wall type) and a fingerprint of the rooms, the
-junctions and the building kind.
+:mod:`qa.field.inputs`. Results (with the wall's field tests) are cached through Django's cache,
+keyed by the audit's key (its stamps change with any finding, opening, wall or wall type), the job's
+building kind and the wall's field stamp (:mod:`qa.field.stamps`: rooms, junctions, field tests).
 
 Notes
 -----
@@ -25,8 +25,6 @@ References
 
 from __future__ import annotations
 
-import hashlib
-import json
 import math
 from collections.abc import Iterable
 from typing import Any
@@ -40,8 +38,9 @@ from acoustics.field_inputs import PREDICTION_FLAGS
 
 from ..audit import audits_for_walls
 from ..audit.cache import AUDIT_TIMEOUT, audit_keys
-from ..models import JunctionOverride, RoomPair
-from .inputs import CAUTION, field_target, junctions_of, rooms_of
+from ..models import FieldTest, JunctionOverride, RoomPair
+from .inputs import CAUTION, field_target, junctions_of, rooms_of, wall_structure
+from .stamps import field_stamps
 
 #: Bump when this adapter changes the numbers; old cache entries are then ignored.
 FIELD_VERSION = "f1"
@@ -103,6 +102,7 @@ def predict_pair(wall, curves: np.ndarray, rooms, junctions: dict, building_kind
         area=rooms.area,
         junctions=junctions,
         leaks=leaks,
+        **wall_structure(wall),
     )
     target = field_target(wall, pair)
     states = {}
@@ -165,48 +165,53 @@ def headline(result: dict) -> dict | None:
     return min(with_margin, key=lambda p: p["states"]["now"]["margin"]) if with_margin else pairs[0]
 
 
-def _fingerprint(wall, pairs: list, overrides: list, building_kind: str) -> str:
-    rows = [
-        building_kind,
-        [
-            [p.pk, p.label, p.source_volume_m3, p.receiving_volume_m3, p.receiving_t_s, p.area_m2]
-            + [p.field_target, p.field_descriptor]
-            for p in pairs
-        ],
-        [[o.position, o.kind, o.element_from] for o in overrides],
-    ]
-    return hashlib.sha1(json.dumps(rows, default=str).encode()).hexdigest()[:16]
+def entry_of_test(t) -> dict[str, Any]:
+    """A field test as the cached prediction carries it (JSON-ready)."""
+    return {
+        "id": t.pk,
+        "room_pair": t.room_pair_id,
+        "tested_on": t.tested_on.isoformat() if hasattr(t.tested_on, "isoformat") else str(t.tested_on),
+        "tester": t.tester,
+        "standard": t.standard,
+        "source": t.source,
+        "results": t.results,
+        "note": t.note,
+    }
 
 
 def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
     """Cached field predictions of ``walls`` of one job (wall types loaded): {wall id: result}.
 
-    Three queries (rooms, junctions, and the audits' own when cold) whatever the number of walls.
+    Each result also lists the wall's field tests (``tests``). Warm: cache reads only. Cold walls:
+    three queries (rooms, junctions, tests) plus the audits' own, whatever their number.
     """
     walls = list(walls)
     if not walls:
         return {}
-    ids = [w.pk for w in walls]
-    pairs: dict[int, list] = {i: [] for i in ids}
-    for p in RoomPair.objects.filter(wall_id__in=ids).order_by("id"):
-        pairs[p.wall_id].append(p)
-    overrides: dict[int, list] = {i: [] for i in ids}
-    for o in JunctionOverride.objects.filter(wall_id__in=ids).order_by("position"):
-        overrides[o.wall_id].append(o)
     akeys = audit_keys(walls)
+    stamps = field_stamps([w.pk for w in walls])
     keys = {
-        w.pk: f"sealwalk:field:{FIELD_VERSION}:{akeys[w.pk]}:"
-        f"{_fingerprint(w, pairs[w.pk], overrides[w.pk], building_kind)}"
-        for w in walls
+        w.pk: f"sealwalk:field:{FIELD_VERSION}:{building_kind}:{akeys[w.pk]}:{stamps[w.pk]}" for w in walls
     }
     hit = cache.get_many(list(keys.values()))
     out = {pk: hit[key] for pk, key in keys.items() if key in hit}
     cold = [w for w in walls if w.pk not in out]
     if cold:
+        ids = [w.pk for w in cold]
+        pairs: dict[int, list] = {i: [] for i in ids}
+        for p in RoomPair.objects.filter(wall_id__in=ids).order_by("id"):
+            pairs[p.wall_id].append(p)
+        overrides: dict[int, list] = {i: [] for i in ids}
+        for o in JunctionOverride.objects.filter(wall_id__in=ids).order_by("position"):
+            overrides[o.wall_id].append(o)
+        tests: dict[int, list] = {i: [] for i in ids}
+        for t in FieldTest.objects.filter(wall_id__in=ids).order_by("-tested_on", "-id"):
+            tests[t.wall_id].append(entry_of_test(t))
         audits = audits_for_walls(cold)
         fresh = {}
         for w in cold:
             res = compute_field(w, audits[w.pk], pairs[w.pk], overrides[w.pk], building_kind)
+            res["tests"] = tests[w.pk]
             fresh[keys[w.pk]] = out[w.pk] = res
         cache.set_many(fresh, AUDIT_TIMEOUT)
     return out

@@ -12,7 +12,6 @@ from typing import Any
 from django.utils.safestring import SafeString
 
 from ..audit import chart as ch
-from ..models import FieldTest
 from .choices import BuildingKind, JunctionPosition
 from .prediction import DESCRIPTOR_NAMES, field_prediction, headline
 
@@ -39,12 +38,12 @@ def _rw_text(d: dict, key: str) -> str:
     return f"{v['value']} ({v['c']:+d}; {v['ctr']:+d})"
 
 
-def compare(test: FieldTest, pair: dict | None) -> list[dict]:
+def compare(test: dict, pair: dict | None) -> list[dict]:
     """Rows of measured beside predicted now, one per descriptor the test rated."""
     rows = []
     now = pair["states"]["now"] if pair else None
     for key, name in DESCRIPTOR_NAMES.items():
-        measured = _single(test.results, key)
+        measured = _single(test["results"], key)
         if measured is None:
             continue
         predicted = _single(now, key)
@@ -59,15 +58,15 @@ def compare(test: FieldTest, pair: dict | None) -> list[dict]:
     return rows
 
 
-def pair_for(result: dict, test: FieldTest) -> dict | None:
+def pair_for(result: dict, test: dict) -> dict | None:
     """The predicted pair a test is compared with: its room pair's, else the wall's deciding pair."""
     for p in result.get("pairs") or []:
-        if test.room_pair_id is not None and p["room_pair"] == test.room_pair_id:
+        if test["room_pair"] is not None and p["room_pair"] == test["room_pair"]:
             return p
     return headline(result)
 
 
-def field_chart(pair: dict, tests: list[FieldTest]) -> SafeString:
+def field_chart(pair: dict, tests: list[dict]) -> SafeString:
     """Inline SVG: predicted R' now and as designed, and each test's measured R' (or ATL)."""
     series = [
         (
@@ -81,13 +80,13 @@ def field_chart(pair: dict, tests: list[FieldTest]) -> SafeString:
         ("now", "predicted now", pair["states"]["now"]["bands"]["r_prime"], "#b3261e", 2.6, ""),
     ]
     for k, t in enumerate(tests[: len(TEST_COLOURS)]):
-        bands = t.results.get("bands", {})
+        bands = t["results"].get("bands", {})
         measured = (
             bands.get("r_prime") if any(v is not None for v in bands.get("r_prime", [])) else bands.get("atl")
         )
         if measured:
-            label = f"measured {t.tested_on:%Y-%m-%d} ({t.standard})"
-            series.append((f"test-{t.pk}", label, measured, TEST_COLOURS[k], 2.2, "2 3"))
+            label = f"measured {t['tested_on']} ({t['standard']})"
+            series.append((f"test-{t['id']}", label, measured, TEST_COLOURS[k], 2.2, "2 3"))
     vals = [v for s in series for v in s[2] if v is not None and math.isfinite(v)]
     if not vals:
         return ch.svg(None)
@@ -113,7 +112,7 @@ def wall_field_context(wall, job) -> dict[str, Any]:
     wall.job = job
     result = field_prediction(wall)
     head = headline(result)
-    tests = list(FieldTest.objects.filter(wall=wall).order_by("-tested_on", "-id"))
+    tests = result.get("tests", [])
     ctx: dict[str, Any] = {
         "result": result,
         "head": head,

@@ -56,6 +56,8 @@ def direct(world, summary, src, rcv, *, area=None, kind="wood_frame", junctions=
         area=area,
         junctions=junctions or {},
         leaks=leaks,
+        wall_mass=25.0,  # a stud wall: lightweight whatever the building kind
+        wall_kind="light",
     )
 
 
@@ -154,3 +156,16 @@ def test_findings_path_never_negative():
     assert clipped and np.all(leaks >= 0) and np.all(leaks[2] == 0)
     assert leaks[1] == pytest.approx(10 * (10**-3.8 - 10**-4.0))
     assert wall_curves({"error": "x"}) == (None, "x")
+
+
+def test_masonry_wall_is_heavy_and_stud_wall_light(world):
+    """The wall's structure follows its construction (concrete-masonry block, 220 kg/m^2, heavy)."""
+    from qa.field.inputs import wall_structure
+
+    assert wall_structure(world.wall) == {"wall_mass": 25.0, "wall_kind": "light", "wall_fc": None}
+    world.wall_type.construction = "masonry"
+    world.wall_type.save()
+    world.wall.refresh_from_db()
+    assert wall_structure(world.wall) == {"wall_mass": 220.0, "wall_kind": "heavy", "wall_fc": 120.0}
+    res = field_prediction(world.wall)
+    assert res["error"] is None and "separating_leaf_estimated" not in res["pairs"][0]["flags"]
