@@ -14,6 +14,7 @@ References
 from __future__ import annotations
 
 import numpy as np
+import numpy.typing as npt
 
 __all__ = [
     "BANDS",
@@ -64,7 +65,7 @@ BAND_INDEX = {int(f): i for i, f in enumerate(BANDS)}
 _N = np.arange(-13, 8)
 
 
-def exact_centres() -> np.ndarray:
+def exact_centres() -> npt.NDArray[np.float64]:
     """Exact base-10 mid-band frequencies of :data:`BANDS`.
 
     Returns
@@ -79,7 +80,7 @@ def exact_centres() -> np.ndarray:
     return 1000.0 * 10.0 ** (_N / 10.0)
 
 
-def band_edges() -> tuple[np.ndarray, np.ndarray]:
+def band_edges() -> tuple[npt.NDArray[np.float64], npt.NDArray[np.float64]]:
     """Lower and upper edges of each one-third-octave band, Hz.
 
     Returns
@@ -105,7 +106,7 @@ def band_slice(low: int, high: int) -> slice:
         raise ValueError(f"{exc.args[0]} Hz is not a one-third-octave band of 50-5000 Hz") from None
 
 
-def sub_band_frequencies(points: int = 16) -> np.ndarray:
+def sub_band_frequencies(points: int = 16) -> npt.NDArray[np.float64]:
     """Frequencies spread evenly in log frequency across each band, for band averaging.
 
     A leak's transmission coefficient varies strongly inside one third octave
@@ -130,7 +131,7 @@ def sub_band_frequencies(points: int = 16) -> np.ndarray:
     return np.asarray(lower[:, None] * (upper / lower)[:, None] ** fractions[None, :], dtype=float)
 
 
-def averaging_frequencies(points: int = 41) -> np.ndarray:
+def averaging_frequencies(points: int = 41) -> npt.NDArray[np.float64]:
     """Log-spaced frequencies for band-averaging a leak's transmission coefficient.
 
     ``points`` frequencies from f_nom * 2**(-1/6) to f_nom * 2**(+1/6), both

@@ -41,8 +41,10 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .bands import exact_centres
 from .cavity_paths import CavityGeometry, Port, pair_coupling
@@ -61,7 +63,7 @@ PAD_SURFACE_DENSITY = 5.0
 BOX_FACE = (0.057, 0.095)
 
 
-def _num(v, name: str, lo: float = 0.0, allow_zero: bool = True) -> float:
+def _num(v: Any, name: str, lo: float = 0.0, allow_zero: bool = True) -> float:
     try:
         x = float(v)
     except (TypeError, ValueError):
@@ -112,14 +114,14 @@ class BoxSpec:
             raise GeometryError(f"fill_behind must be 'cavity' or 'none', got {self.fill_behind!r}")
 
 
-def pad_factor(surface_density: float = PAD_SURFACE_DENSITY) -> np.ndarray:
+def pad_factor(surface_density: float = PAD_SURFACE_DENSITY) -> npt.NDArray[np.float64]:
     """Normal-incidence mass-law tau of a limp pad per band: 1 / (1 + (omega m / (2 rho0 c0))^2)."""
     w = 2.0 * np.pi * exact_centres()
     return 1.0 / (1.0 + (w * surface_density / (2.0 * RHO0 * C0)) ** 2)
 
 
 @lru_cache(maxsize=256)
-def _opening(leak_area: float, oversize: float, pad: bool, board: float) -> np.ndarray:
+def _opening(leak_area: float, oversize: float, pad: bool, board: float) -> npt.NDArray[np.float64]:
     a = np.zeros(exact_centres().size)
     if leak_area > 0:
         a = a + hole(float(np.sqrt(4.0 * leak_area / np.pi)), board).area
@@ -132,14 +134,17 @@ def _opening(leak_area: float, oversize: float, pad: bool, board: float) -> np.n
     return a
 
 
-def box_opening(box: BoxSpec, board: float) -> np.ndarray:
+def box_opening(box: BoxSpec, board: float) -> npt.NDArray[np.float64]:
     """Transmission area of one box into the cavity, m^2 per band (board = leaf thickness, m)."""
     return _opening(box.leak_area, box.oversize, bool(box.pad), round(float(board), 6))
 
 
 def box_pair(
-    box: BoxSpec, geom: CavityGeometry, boards: tuple[float, float], floor: np.ndarray | float = 0.0
-) -> tuple[Port, Port, np.ndarray, str]:
+    box: BoxSpec,
+    geom: CavityGeometry,
+    boards: tuple[float, float],
+    floor: npt.NDArray[np.float64] | float = 0.0,
+) -> tuple[Port, Port, npt.NDArray[np.float64], str]:
     """The two boxes of a pair as ports, their joint coupling area (m^2 per band) and the path text.
 
     ``floor`` is a lower bound on the coupling X, 1/m^2 (the wall model's own diffuse-cavity term).

@@ -40,6 +40,7 @@ from functools import cache
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .bands import exact_centres
 from .constants import C0, RHO0
@@ -51,22 +52,24 @@ from .junctions import LIGHT_FRAME_DATA, lab_loss_factor
 __all__ = ["BUILDING_KINDS", "heavy_element_r", "default_junctions", "wall_defaults", "predict_wall"]
 
 
-def heavy_element_r(mass: float, fc: float, eta_int: float) -> np.ndarray:
+def heavy_element_r(mass: float, fc: float, eta_int: float) -> npt.NDArray[np.float64]:
     """Laboratory R (dB, 21 bands) of a homogeneous heavy element, Sharp/Bies single leaf (module Notes)."""
     f = exact_centres()
     eta = lab_loss_factor(mass, eta_int, f)
     limp = 20 * np.log10(mass * f) - 47.0
 
-    def above(ff: np.ndarray, ee: np.ndarray) -> np.ndarray:
+    def above(ff: npt.NDArray[np.float64], ee: npt.NDArray[np.float64]) -> npt.NDArray[np.float64]:
         normal = 20 * np.log10(np.pi * ff * mass / (RHO0 * C0))
-        return normal + 10 * np.log10(2 * ee * ff / (np.pi * fc))
+        r_above: npt.NDArray[np.float64] = normal + 10 * np.log10(2 * ee * ff / (np.pi * fc))
+        return r_above
 
     r = np.where(f <= fc / 2, limp, np.minimum(above(f, eta), limp))
     mid = (f > fc / 2) & (f < fc)
     lo = 20 * np.log10(mass * fc / 2) - 47.0
     hi = above(np.asarray(fc), lab_loss_factor(mass, eta_int, fc))
     x = np.log10(f / (fc / 2)) / np.log10(2.0)
-    return np.where(mid, lo + x * (hi - lo), r)
+    out: npt.NDArray[np.float64] = np.where(mid, lo + x * (hi - lo), r)
+    return out
 
 
 def _fc(thickness: float, c_l: float) -> float:
@@ -117,7 +120,7 @@ def _kind(kind: str) -> dict[str, Any]:
 
 
 @cache
-def _element(row: tuple) -> Element:
+def _element(row: tuple[Any, ...]) -> Element:
     if row[2] == "heavy":
         name, mass, _k, fc, eta = row
         return Element(heavy_element_r(mass, fc, eta), mass, "heavy", fc, eta, name=name)

@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from . import junctions as jn
 from .bands import N_BANDS
@@ -51,8 +52,8 @@ PREDICTION_FLAGS = {
 }
 
 
-def _bands(value: Any, name: str, *, lead: bool = False) -> np.ndarray:
-    arr = np.asarray(value, dtype=float)
+def _bands(value: Any, name: str, *, lead: bool = False) -> npt.NDArray[np.float64]:
+    arr = np.asarray(value, dtype=np.float64)
     if arr.ndim == 0:
         arr = np.full(N_BANDS, float(arr))
     if arr.shape[-1] != N_BANDS or (arr.ndim > 1 and not lead):
@@ -235,9 +236,13 @@ class Room:
                 raise FieldInputError(f"{label}.t", "must be > 0 s and at most 20 s in every band")
             object.__setattr__(self, "t", t)
 
-    def t_bands(self, sabine: float = SABINE_ISO) -> np.ndarray:
+    def t_bands(self, sabine: float = SABINE_ISO) -> npt.NDArray[np.float64]:
         """Reverberation time per band, s (from the absorption area when that was given)."""
-        return self.t if self.absorption is None else sabine * self.volume / self.absorption
+        # __post_init__ leaves exactly one of t and absorption as a band array.
+        t: npt.NDArray[np.float64] = (
+            self.t if self.absorption is None else sabine * self.volume / self.absorption
+        )
+        return t
 
 
 @dataclass(frozen=True)
