@@ -158,6 +158,29 @@ def face_name(wall, face: str) -> str:
     return "Through the wall"
 
 
+def _coverage(wall, counts: dict[str, list[int]]) -> dict:
+    faces = [
+        {"face": f, "name": face_name(wall, f), "checked": c[0], "total": c[1]}
+        for f in FACE_ORDER
+        if (c := counts.get(f))
+    ]
+    return {
+        "checked": sum(f["checked"] for f in faces),
+        "total": sum(f["total"] for f in faces),
+        "faces": faces,
+    }
+
+
+def coverage_of(wall, points: Iterable) -> dict:
+    """Coverage of one wall from its live seal points already loaded (no query)."""
+    counts: dict[str, list[int]] = {}
+    for p in points:
+        slot = counts.setdefault(p.face, [0, 0])
+        slot[1] += 1
+        slot[0] += p.status in CHECKED_STATUSES
+    return _coverage(wall, counts)
+
+
 def coverage_for_walls(walls: Iterable) -> dict[int, dict]:
     """{wall id: coverage} for ``walls`` in one query.
 
@@ -177,19 +200,7 @@ def coverage_for_walls(walls: Iterable) -> dict[int, dict]:
         slot[1] += n
         if status in CHECKED_STATUSES:
             slot[0] += n
-    out = {}
-    for w in walls:
-        faces = [
-            {"face": f, "name": face_name(w, f), "checked": c[0], "total": c[1]}
-            for f in FACE_ORDER
-            if (c := counts[w.pk].get(f))
-        ]
-        out[w.pk] = {
-            "checked": sum(f["checked"] for f in faces),
-            "total": sum(f["total"] for f in faces),
-            "faces": faces,
-        }
-    return out
+    return {w.pk: _coverage(w, counts[w.pk]) for w in walls}
 
 
 def coverage_text(cov: dict) -> str:

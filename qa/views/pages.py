@@ -12,7 +12,8 @@ from .. import units
 from ..access import can, job_for
 from ..audit import audit_summary, audits_for_walls
 from ..audit.presentation import job_overview, wall_overview
-from ..audit.verdicts import face_name, verdicts_for_walls
+from ..audit.verdicts import coverage_of, face_name, verdicts_for_walls
+from ..audit.verdicts import verdict as verdict_of
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES, Role
 from ..login_throttle import LoginThrottleMixin
@@ -96,7 +97,7 @@ def wall_page(request, job_pk, wall_pk):
             Prefetch("photos", queryset=Photo.objects.filter(removed=False).order_by("uploaded_at"))
         )
     )
-    verdict = verdicts_for_walls([wall], {wall.pk: summary})[wall.pk]
+    verdict = verdict_of(summary, coverage_of(wall, points))
     ctx = wall_overview(job, member, wall, summary, findings, verdict)
     top, beside = feedback.split(request, [it["f"].pk for it in ctx["items"]])
     for it in ctx["items"]:
