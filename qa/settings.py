@@ -123,6 +123,8 @@ MIDDLEWARE = [
     "django.middleware.security.SecurityMiddleware",
     # Before whitenoise, so files it serves from the site root (the service worker) carry the policy too.
     "qa.middleware.ContentSecurityPolicyMiddleware",
+    # An over-size body is refused on its declared length, before anything reads it.
+    "qa.middleware.BodySizeLimitMiddleware",
     "whitenoise.middleware.WhiteNoiseMiddleware",
     "django.contrib.sessions.middleware.SessionMiddleware",
     "django.middleware.common.CommonMiddleware",

@@ -143,17 +143,58 @@ def test_bad_upload_is_refused_and_nothing_is_stored(case, world, finding, api, 
 
 
 def test_oversize_upload_is_refused_before_decoding(world, finding, api, settings):
-    settings.PHOTO_MAX_BYTES = 50_000
     before = snapshot(world, settings)
     import random
 
     noise = Image.frombytes("RGB", (400, 300), random.Random(7).randbytes(400 * 300 * 3))  # incompressible
     buf = io.BytesIO()
     noise.save(buf, "PNG")
-    assert len(buf.getvalue()) > 50_000
+    # Just over the photo limit, within the request's margin for multipart fields: the body is read,
+    # the image is refused on its size before any decoding.
+    settings.PHOTO_MAX_BYTES = len(buf.getvalue()) - 1000
     response = upload(api, world, finding, buf.getvalue(), "big.png", "image/png")
     assert response.status_code == 400 and "larger than" in response.json()["image"][0]
     assert snapshot(world, settings) == before
+
+
+class Unreadable:
+    """A request body that fails the test if anything reads it."""
+
+    def read(self, *args, **kwargs):
+        raise AssertionError("the over-size body was read")
+
+    readline = read
+
+
+def test_oversize_photo_post_is_refused_before_its_body_is_read(world, finding, api, settings):
+    from qa.middleware import MULTIPART_MARGIN
+
+    limit = settings.PHOTO_MAX_BYTES + MULTIPART_MARGIN
+    before = snapshot(world, settings)
+    for user in (world.inspector, None):  # signed in or not, nothing is read
+        response = api(user).generic(
+            "POST",
+            f"/api/jobs/{world.job.pk}/photos/",
+            content_type="multipart/form-data; boundary=xyz",
+            CONTENT_LENGTH=str(limit + 1),
+            **{"wsgi.input": Unreadable()},
+        )
+        assert response.status_code == 413, response.content[:200]
+        assert "larger than" in response.json()["image"][0]
+    assert snapshot(world, settings) == before
+
+
+def test_oversize_photo_post_of_real_bytes_is_refused_with_nothing_stored(
+    world, finding, api, settings, tmp_path
+):
+    settings.PHOTO_MAX_BYTES = 200_000
+    settings.FILE_UPLOAD_TEMP_DIR = str(tmp_path / "upload-tmp")
+    Path(settings.FILE_UPLOAD_TEMP_DIR).mkdir()
+    before = snapshot(world, settings)
+    response = upload(api, world, finding, b"\xff\xd8" + b"\x00" * 400_000, "big.jpg", "image/jpeg")
+    assert response.status_code == 413 and "image" in response.json()
+    assert snapshot(world, settings) == before
+    assert not any(Path(settings.FILE_UPLOAD_TEMP_DIR).iterdir())
 
 
 def test_wrong_extension_real_image_is_judged_by_content(world, finding, api, settings):
