@@ -55,6 +55,7 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from . import junctions as jn
 from .bands import BANDS, N_BANDS
@@ -62,6 +63,10 @@ from .constants import C0, SABINE_ASTM, SABINE_ISO, T0_ISO
 from .field import FieldInputError, energy_sum_index, flanking_path_index
 from .field_inputs import PREDICTION_FLAGS, Element, Junction, Room, Separating
 from .ratings import RwResult, rating_weights, rw, stc
+
+Floats = npt.NDArray[np.float64]
+#: An edge of a heavy element for its in-situ loss factor: (length l_k in m, absorption coefficient alpha_k).
+Edge = tuple[float, Floats]
 
 __all__ = ["FieldPrediction", "predict_field", "SimplifiedPrediction", "predict_simplified"]
 
@@ -71,13 +76,24 @@ _LOW = BANDS < 100
 _PATHS = (("Ff", "F", "f", "through"), ("Fd", "F", "d", "corner"), ("Df", "D", "f", "corner"))
 
 
-def _tau(r: np.ndarray) -> np.ndarray:
-    return 10.0 ** (-np.asarray(r, float) / 10.0)
+def _tau(r: Floats) -> Floats:
+    return 10.0 ** (-np.asarray(r, np.float64) / 10.0)
 
 
-def _r(tau: np.ndarray) -> np.ndarray:
+def _r(tau: Floats) -> Floats:
     with np.errstate(divide="ignore"):
-        return -10.0 * np.log10(tau)
+        r: Floats = -10.0 * np.log10(tau)
+    return r
+
+
+def _receive(j: Junction) -> Element:
+    # Junction.__post_init__ puts flank into flank_receive when no receiving-side element was given.
+    return j.flank if j.flank_receive is None else j.flank_receive
+
+
+def _area(wall: Separating) -> float:
+    # Separating.__post_init__ fills the area in (length x height unless given).
+    return wall.length * wall.height if wall.area is None else wall.area
 
 
 @dataclass(frozen=True, eq=False)
@@ -107,18 +123,18 @@ class FieldPrediction:
         Separating area S_s (m^2) and receiving-room volume (m^3) used.
     """
 
-    r_prime: np.ndarray
-    dnt: np.ndarray
-    d: np.ndarray
-    nr: np.ndarray
-    nnr: np.ndarray
+    r_prime: Floats
+    dnt: Floats
+    d: Floats
+    nr: Floats
+    nnr: Floats
     r_prime_w: RwResult
     dnt_w: RwResult
     astc: Any
     nnic: Any
     nic: Any
-    paths: dict[str, np.ndarray]
-    share: dict[str, np.ndarray]
+    paths: dict[str, Floats]
+    share: dict[str, Floats]
     share_weighted: dict[str, Any]
     flags: tuple[str, ...]
     area: float
@@ -139,7 +155,7 @@ class FieldPrediction:
             v = float(pick(v))
             return None if not math.isfinite(v) else (int(v) if v == int(v) else round(v, 2))
 
-        def bands(a: Any) -> list:
+        def bands(a: Any) -> list[float | None]:
             return [None if not math.isfinite(x) else round(x, 2) for x in pick(a).tolist()]
 
         rated = {"r_prime_w": self.r_prime_w, "dnt_w": self.dnt_w}
@@ -154,11 +170,14 @@ class FieldPrediction:
         return out
 
 
-def _wall_leaf(wall: Separating, flags: set[str]) -> np.ndarray:
+def _wall_leaf(wall: Separating, flags: set[str]) -> Floats:
+    # r and r_leaf are band arrays once Separating.__post_init__ has run.
     if wall.r_leaf is not None:
-        return wall.r_leaf
+        given: Floats = wall.r_leaf
+        return given
     if wall.kind == "heavy":
-        return wall.r
+        own: Floats = wall.r
+        return own
     flags.add("separating_leaf_estimated")
     # Field-incidence mass law of one leaf (Sharp: 20 lg(m f) - 47), half the wall's mass.
     return 20.0 * np.log10(0.5 * wall.mass * BANDS) - 47.0
@@ -176,22 +195,20 @@ def _geometry(j: Junction, wall: Separating, src: Room, rcv: Room) -> tuple[floa
     return length, s_src, s_rcv
 
 
-def _k_paths(j: Junction, wall: Separating, flags: set[str]) -> dict[str, np.ndarray]:
+def _k_paths(j: Junction, wall: Separating, flags: set[str]) -> dict[str, Floats]:
     """Annex E K_ij of the three paths (the wall is the element across each junction)."""
     out = {}
     for name, a, _b, geom in _PATHS:
-        elem = j.flank if a == "F" else j.flank_receive
+        elem = j.flank if a == "F" else _receive(j)
         out[name] = jn.kij(j.kind, geom, wall.mass / elem.mass)
     if j.kind in ("rigid_cross", "rigid_t", "flexible") and (
-        j.flank.mass < 100 or j.flank_receive.mass < 100 or wall.mass < 100
+        j.flank.mass < 100 or _receive(j).mass < 100 or wall.mass < 100
     ):
         flags.add("annex_e_outside_scope")
     return out
 
 
-def _situ(
-    elem: Element, area: float, edges: list, c0: float, flags: set[str]
-) -> tuple[np.ndarray, np.ndarray]:
+def _situ(elem: Element, area: float, edges: list[Edge], c0: float, flags: set[str]) -> tuple[Floats, Floats]:
     """(in-situ R, absorption length) of one element."""
     if elem.kind == "light":
         return elem.r_star, np.full(N_BANDS, area)
@@ -213,10 +230,10 @@ def _situ(
 
 
 def _wall_situ(
-    wall: Separating, leaf: np.ndarray, edges: list, c0: float, flags: set[str]
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    wall: Separating, leaf: Floats, edges: list[Edge], c0: float, flags: set[str]
+) -> tuple[Floats, Floats, Floats]:
     """(in-situ leaf index for Fd/Df, absorption length, direct-path index) of the separating wall."""
-    s_s = wall.area
+    s_s = _area(wall)
     if wall.kind == "light":
         return leaf, np.full(N_BANDS, s_s), wall.r
     eta_lab = jn.lab_loss_factor(wall.mass, wall.eta_int)
@@ -237,7 +254,7 @@ def _wall_situ(
     )
 
 
-def _flank_edges(elem: Element, area: float, length: float, alpha: np.ndarray) -> list:
+def _flank_edges(elem: Element, area: float, length: float, alpha: Floats) -> list[Edge]:
     # Whole perimeter of a rectangle with one side l_f, coupled like the known junction.
     return [(2.0 * (length + area / length), alpha)]
 
@@ -282,7 +299,7 @@ def predict_field(
     if len(set(seen)) != len(seen):
         raise FieldInputError("junctions", f"each position may appear once, got {seen}")
     flags = {"prediction"}
-    s_s = wall.area
+    s_s = _area(wall)
     leaf = _wall_leaf(wall, flags)
     geo = [_geometry(j, wall, source_room, receiving_room) for j in junctions]
     ks = []
@@ -304,7 +321,7 @@ def predict_field(
     wall_edges = []
     for j, k, (length, _s1, _s2) in zip(junctions, ks, geo, strict=True):
         if wall.kind == "heavy" and j.flank.fc is not None and "Fd" in k and "Df" in k:
-            pairs = [(j.flank.fc, k["Fd"]), (j.flank_receive.fc or j.flank.fc, k["Df"])]
+            pairs = [(j.flank.fc, k["Fd"]), (_receive(j).fc or j.flank.fc, k["Df"])]
             if j.kind == "rigid_cross":
                 pairs.append(
                     (wall.fc or j.flank.fc, jn.kij("rigid_cross", "through", j.flank.mass / wall.mass))
@@ -312,19 +329,22 @@ def predict_field(
             wall_edges.append((length, jn.edge_absorption(pairs)))
     leaf_situ, a_wall, direct = _wall_situ(wall, leaf, wall_edges, c0, flags)
 
-    paths: dict[str, np.ndarray] = {"Dd": direct}
+    paths: dict[str, Floats] = {"Dd": direct}
     if leaks is not None:
-        area = np.sum([lk.area for lk in leaks], axis=0) if _is_leak_list(leaks) else np.asarray(leaks, float)
-        if area.shape[-1:] != (N_BANDS,) or not np.all(np.isfinite(area)) or np.any(area < 0):
+        leak_area = (
+            np.sum([lk.area for lk in leaks], axis=0) if _is_leak_list(leaks) else np.asarray(leaks, float)
+        )
+        if leak_area.shape[-1:] != (N_BANDS,) or not np.all(np.isfinite(leak_area)) or np.any(leak_area < 0):
             raise FieldInputError("leaks", "must be transmission areas S tau >= 0 m^2 per band (21 bands)")
-        paths["leaks"] = _r(area / s_s)
+        paths["leaks"] = _r(leak_area / s_s)
 
     for j, k, (length, s_src, s_rcv) in zip(junctions, ks, geo, strict=True):
-        rows = {"F": (j.flank, s_src), "f": (j.flank_receive, s_rcv)}
-        situ = {}
+        rows = {"F": (j.flank, s_src), "f": (_receive(j), s_rcv)}
+        # Per role: (in-situ index R, absorption length a, lining dR (all per band), area S).
+        situ: dict[str, tuple[Floats, Floats, Floats, float]] = {}
         for role, (elem, area) in rows.items():
-            other = j.flank_receive if role == "F" else j.flank
-            edges = []
+            other = _receive(j) if role == "F" else j.flank
+            edges: list[Edge] = []
             if elem.kind == "heavy" and elem.fc is not None and "Ff" in k:
                 pairs = [
                     (other.fc or elem.fc, k["Ff"]),
@@ -362,7 +382,7 @@ def _is_leak_list(leaks: Any) -> bool:
     return isinstance(leaks, (list, tuple)) and all(hasattr(lk, "area") for lk in leaks) and len(leaks) > 0
 
 
-def _light_dvn(j: Junction, name: str, flags: set[str]) -> np.ndarray:
+def _light_dvn(j: Junction, name: str, flags: set[str]) -> Floats:
     """Representative Dv,ij,n of a lightweight junction (ISO 12354-1:2017 Annex L.2 data)."""
     flags.add("light_data_representative")
     data = jn.LIGHT_FRAME_DATA
@@ -376,14 +396,15 @@ def _light_dvn(j: Junction, name: str, flags: set[str]) -> np.ndarray:
     return dvn
 
 
-def _finish(paths: dict[str, np.ndarray], s_s: float, rcv: Room, flags: set[str]) -> FieldPrediction:
+def _finish(paths: dict[str, Floats], s_s: float, rcv: Room, flags: set[str]) -> FieldPrediction:
     lead = np.shape(paths["Dd"])[:-1]
     taus = {k: np.broadcast_to(_tau(v), lead + (N_BANDS,)) for k, v in paths.items()}
-    total = sum(taus.values())
+    # Summed from a zero band array rather than 0 so the total is typed as an array; the values are the same.
+    total = sum(taus.values(), np.zeros(lead + (N_BANDS,)))
     r_prime = _r(total)
     share = {k: t / total for k, t in taus.items()}
     w_total = np.sum(total * _W_RW, axis=-1)
-    share_w = {k: np.sum(t * _W_RW, axis=-1) / w_total for k, t in taus.items()}
+    share_w: dict[str, Floats | float] = {k: np.sum(t * _W_RW, axis=-1) / w_total for k, t in taus.items()}
     if not lead:
         share_w = {k: float(v) for k, v in share_w.items()}
     v = rcv.volume
