@@ -57,6 +57,8 @@ def edit_finding(
     actor.need("edit")
     if finding.removed:
         raise Reject({"finding": ["was removed"]})
+    if finding.wall.removed:
+        raise Reject({"finding": ["its wall was removed"]})
     check_version(finding, base_version)
     for name, value in changes.items():
         setattr(finding, name, value)
@@ -79,13 +81,19 @@ def finding_step(
     method, right = STEPS[step]
     actor.need(right, trade=finding.trade)
     note = clean_note(note)
+    if finding.removed:
+        raise Reject({"status": ["this finding was removed"]})
+    if finding.wall.removed:
+        raise Reject({"status": ["its wall was removed"]})
+    # The version first: a step decided on an older version (someone fixed, verified or edited the
+    # finding since) is a conflict for the inspector even when the status would still allow it.
+    check_version(finding, base_version)
     try:
         finding.check_step(step)
     except TransitionError as exc:
         raise Reject({"status": [str(exc).partition(": ")[2]]}) from None
     if step == "reopen" and not note:
         raise Reject({"note": ["say why the finding is reopened"]})
-    check_version(finding, base_version)
     try:
         getattr(finding, method)(actor.user, note, **actor.device)
     except TransitionError as exc:

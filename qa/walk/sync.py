@@ -223,7 +223,9 @@ def resolve(actor: Actor, conflict_id: Any, keep: Any, base_version: int | None 
         raise Reject({"conflict": ["no such conflict in this job"]})
     device = conflict.device_version if isinstance(conflict.device_version, dict) else {}
     changes = None
-    if keep == "device" and not device.get("removed") and not conflict.finding.removed:
+    # Only an edit carries changes to validate: a removal or a lifecycle step has none.
+    edits = not (device.get("removed") or device.get("step") or conflict.finding.removed)
+    if keep == "device" and edits:
         changes = validated_changes(actor.job, conflict.finding, device.get("changes"))
     try:
         conflict = actions.resolve_conflict(actor, conflict, keep, changes, base_version)
