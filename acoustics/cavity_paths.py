@@ -45,11 +45,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+import numpy.typing as npt
 
 from . import apertures as ap
 from .assembly import Assembly
 from .bands import exact_centres
 from .constants import C0, RHO0
+
+Floats = npt.NDArray[np.float64]
 
 __all__ = ["CavityGeometry", "Port", "BAY_TYPES", "direct_coupling", "line_coupling", "pair_coupling"]
 
@@ -94,7 +97,7 @@ class CavityGeometry:
     @classmethod
     def from_assembly(cls, asm: Assembly, area: float, height: float) -> CavityGeometry:
         """Geometry of a two-leaf assembly's cavity (channel depth added as in :mod:`acoustics.walls`)."""
-        cav = asm.cavity
+        cav = asm.gap
         c = asm.connection
         depth = cav.depth + (_CHANNEL_DEPTH if c.channel_leaf is not None else 0.0)
         bay = c.spacing if c.type in BAY_TYPES and c.spacing else None
@@ -110,7 +113,7 @@ class CavityGeometry:
             self.depth, thickness, self.flow_resistivity, self.bay_width, self.height, self.area
         )
 
-    def alpha(self) -> np.ndarray:
+    def alpha(self) -> Floats:
         """Absorption coefficient of the cavity faces per band: max(bare cavity, rigidly backed fill).
 
         Notes
@@ -125,7 +128,7 @@ class CavityGeometry:
         z = -1j * zeta / np.tan(kc * self.fill_thickness)
         return np.maximum(BARE_ALPHA, 1.0 - np.abs((z - 1.0) / (z + 1.0)) ** 2)
 
-    def kappa(self) -> np.ndarray:
+    def kappa(self) -> Floats:
         """Amplitude attenuation along the cavity per band, Np/m.
 
         Notes
@@ -139,9 +142,10 @@ class CavityGeometry:
             return bare
         kc, _, _ = ap.delany_bazley(_F, self.flow_resistivity, rho0=RHO0, c0=C0)
         frac = min(self.fill_thickness / self.depth, 1.0)
-        return np.maximum(bare, -kc.imag * frac)
+        kappa: Floats = np.maximum(bare, -kc.imag * frac)
+        return kappa
 
-    def reverberant(self, same_bay: bool) -> np.ndarray:
+    def reverberant(self, same_bay: bool) -> Floats:
         """X_rev = 1 / (2 alpha S_c) per band, 1/m^2 (S_c a bay when ``same_bay`` and bays exist)."""
         s_c = self.bay_width * self.height if (same_bay and self.bay_width) else self.area
         return 1.0 / (2.0 * self.alpha() * s_c)
@@ -166,17 +170,19 @@ class Port:
     """
 
     face: int
-    area: np.ndarray
+    area: Floats
     x: float | None = None
     length: float = 0.0
     edge: str | None = None
 
 
-def _g(cos: np.ndarray | float) -> np.ndarray | float:
+def _g(cos: Floats | float) -> Floats | float:
     return (1.0 + 3.0 * np.square(cos)) / 8.0
 
 
-def direct_coupling(geom: CavityGeometry, r: float, *, same_bay: bool = True, kappa=None) -> np.ndarray:
+def direct_coupling(
+    geom: CavityGeometry, r: float, *, same_bay: bool = True, kappa: Floats | None = None
+) -> Floats:
     """Direct-field coupling X_dir of two compact openings r m apart along the cavity, 1/m^2 per band.
 
     X_dir = g e^{-2 kappa r_e} / Sigma(r_e), r_e = sqrt(r^2 + d^2), Sigma = 2 pi r_e d, capped at
@@ -195,8 +201,8 @@ def direct_coupling(geom: CavityGeometry, r: float, *, same_bay: bool = True, ka
 
 
 def line_coupling(
-    geom: CavityGeometry, overlap: float, length_p: float, length_q: float, *, kappa=None
-) -> np.ndarray:
+    geom: CavityGeometry, overlap: float, length_p: float, length_q: float, *, kappa: Floats | None = None
+) -> Floats:
     """Direct coupling of two parallel line openings facing across the cavity, 1/m^2 per band.
 
     X = (L_o / (L_p L_q)) g e^{-2 kappa d} / (pi d) (two-dimensional spreading from a line, facing).
@@ -218,7 +224,7 @@ def _overlap(p: Port, q: Port) -> float:
 
 def pair_coupling(
     geom: CavityGeometry, p: Port, q: Port, *, same_bay: bool | None = None
-) -> tuple[np.ndarray, str]:
+) -> tuple[Floats, str]:
     """Coupling X_pq (1/m^2 per band) of two openings on opposite faces and how it was taken.
 
     Parameters

@@ -147,7 +147,7 @@ def insulation_defect(
     asm = _asm(spec)
     _two_leaf(asm, "insulation_defect")
     a = _area(area, "area", asm.area)
-    cav = asm.cavity
+    cav = asm.gap
     if not 0 <= remaining_thickness < max(cav.absorber_thickness, 1e-9):
         raise GeometryError("remaining_thickness must be >= 0 and below the designed absorber thickness")
     # Compressed fibre keeps its mass: flow resistivity rises in proportion (from memory; common practice).
