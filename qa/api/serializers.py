@@ -3,7 +3,6 @@
 from __future__ import annotations
 
 import copy
-
 import math
 
 from django.contrib.auth import get_user_model

@@ -26,6 +26,8 @@ from __future__ import annotations
 
 import uuid
 from collections.abc import Callable
+from contextvars import ContextVar
+from dataclasses import dataclass, field
 from typing import Any
 
 from django.core.exceptions import PermissionDenied
@@ -37,7 +39,7 @@ from ..actions import Actor, Reject, Stale
 from ..actions.parse import parse_id, parse_uuid, parse_version
 from ..api.serializers import FindingSerializer
 from ..audit.cache import deferred_invalidation
-from ..models import Conflict, Finding, Job, Member, SealPoint, SyncOperation
+from ..models import Conflict, Finding, Job, Member, Photo, SealPoint, SyncOperation
 from ..models.events import buffered_events
 from .operations import Operation, parse_operation
 
@@ -81,7 +83,13 @@ def _plain_errors(errors: Any) -> dict:
 
 def _finding(actor: Actor, payload: dict) -> Finding:
     client_id = parse_uuid(payload.get("finding"), "finding")
-    finding = Finding.objects.select_for_update().filter(client_id=client_id, job=actor.job).first()
+    finding = (
+        Finding.objects.select_for_update(of=("self",))
+        .select_related("wall__wall_type", "seal_point", "created_by")
+        .prefetch_related("photos")
+        .filter(client_id=client_id, job=actor.job)
+        .first()
+    )
     if finding is None:
         raise Reject({"finding": ["no such finding in this job"]})
     return finding
@@ -121,6 +129,38 @@ def _stale(actor: Actor, finding: Finding, base: int, device_version: dict) -> t
     return answer, conflict
 
 
+# --- what one batch loads at once ---------------------------------------------------------------
+
+
+@dataclass
+class Prefetched:
+    """Rows a batch reads once instead of once per operation (locked with the batch's transaction)."""
+
+    points: dict[int, SealPoint] = field(default_factory=dict)
+    #: client ids of findings that already exist (a replayed create); None: not looked up
+    existing: set[uuid.UUID] | None = None
+
+
+_PREFETCHED: ContextVar[Prefetched | None] = ContextVar("sealwalk_sync_prefetched", default=None)
+
+
+def _prefetch(job: Job, ops: list[Operation]) -> Prefetched:
+    point_ids, client_ids = set(), set()
+    for op in ops:
+        try:
+            if op.kind == "seal_point.status":
+                point_ids.add(parse_id(op.payload.get("seal_point"), "seal_point"))
+            elif op.kind == "finding.create":
+                client_ids.add(parse_uuid(op.payload.get("client_id"), "client_id"))
+        except Reject:
+            continue  # the handler answers it
+    points = SealPoint.objects.select_for_update().filter(
+        pk__in=point_ids, wall__job=job, wall__removed=False, removed=False
+    )
+    existing = set(Finding.objects.filter(client_id__in=client_ids).values_list("client_id", flat=True))
+    return Prefetched(points={p.pk: p for p in points}, existing=existing)
+
+
 # --- operation handlers: (actor, op) -> (answer, conflict or None) ------------------------------
 
 Answer = tuple[dict, Conflict | None]
@@ -130,11 +170,14 @@ def _seal_point_status(actor: Actor, op: Operation) -> Answer:
     actor.need("edit")
     status = op.payload.get("status")
     point_id = parse_id(op.payload.get("seal_point"), "seal_point")
-    point = (
-        SealPoint.objects.select_for_update()
-        .filter(pk=point_id, wall__job=actor.job, wall__removed=False, removed=False)
-        .first()
-    )
+    batch = _PREFETCHED.get()
+    point = batch.points.get(point_id) if batch is not None else None
+    if point is None:
+        point = (
+            SealPoint.objects.select_for_update()
+            .filter(pk=point_id, wall__job=actor.job, wall__removed=False, removed=False)
+            .first()
+        )
     if point is None:
         raise Reject({"seal_point": ["no such seal point in this job"]})
     try:
@@ -154,7 +197,10 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
     actor.need("edit")
     if op.payload.get("client_id") is None:
         raise Reject({"client_id": ["required: the device makes the finding's UUID"]})
-    existing = actions.findings.existing_finding(actor, parse_uuid(op.payload.get("client_id"), "client_id"))
+    client_id = parse_uuid(op.payload.get("client_id"), "client_id")
+    batch = _PREFETCHED.get()
+    absent = batch is not None and batch.existing is not None and client_id not in batch.existing
+    existing = None if absent else actions.findings.existing_finding(actor, client_id)
     if existing is not None:
         return {"status": "applied", "finding": finding_data(existing, actor.job)}, None
     serializer = FindingSerializer(data=op.payload, context={"job": actor.job})
@@ -168,6 +214,7 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
         finding = actions.findings.existing_finding(actor, serializer.validated_data.get("client_id"))
         if finding is None:
             raise
+    finding._prefetched_objects_cache = {"photos": Photo.objects.none()}  # a new finding has none yet
     answer: dict = {"status": "applied", "finding": finding_data(finding, actor.job)}
     if finding.seal_point is not None:
         answer["seal_point"] = _seal_point_data(finding.seal_point)
@@ -263,83 +310,65 @@ def _replay(row: SyncOperation, job: Job, member: Member) -> dict:
     return row.result
 
 
-def _run(actor: Actor, op: Operation, events: list) -> Answer:
-    """Run one handler in a savepoint; a rule broken rolls back its changes and its events."""
+def _rejection(exc: Exception) -> dict:
+    if isinstance(exc, Reject):
+        return {"status": "rejected", "errors": exc.errors}
+    if isinstance(exc, PermissionDenied):
+        return {"status": "rejected", "errors": {"non_field_errors": [str(exc)]}}
+    # A value the database or the model cannot hold: this operation alone is refused.
+    return {"status": "rejected", "errors": {"payload": [f"could not be stored ({type(exc).__name__})"]}}
+
+
+def _apply(actor: Actor, op: Operation, events: list) -> tuple[dict, Conflict | None]:
+    """Apply one claimed operation in its own savepoint; a broken rule rolls back its changes and events."""
     mark = len(events)
     try:
         with transaction.atomic():
-            return HANDLERS[op.kind](actor, op)
-    except Reject as exc:
+            result, conflict = HANDLERS[op.kind](actor, op)
+        return {"op_id": str(op.op_id), "kind": op.kind, **result}, conflict
+    except (Reject, PermissionDenied, DataError, OverflowError, TypeError) as exc:
         del events[mark:]
-        return {"status": "rejected", "errors": exc.errors}, None
-    except PermissionDenied as exc:
-        del events[mark:]
-        return {"status": "rejected", "errors": {"non_field_errors": [str(exc)]}}, None
-    except (DataError, OverflowError, TypeError) as exc:
-        # A value the database or the model cannot hold: this operation alone is refused.
-        del events[mark:]
-        return {
-            "status": "rejected",
-            "errors": {"payload": [f"could not be stored ({type(exc).__name__})"]},
-        }, None
+        batch = _PREFETCHED.get()
+        if batch is not None:
+            batch.points.clear()  # a rolled-back tick may have changed a loaded row: read them again
+        return {"op_id": str(op.op_id), "kind": op.kind, **_rejection(exc)}, None
 
 
-def _apply(actor: Actor, op: Operation, events: list, known: dict) -> dict:
-    if op.op_id in known:
-        return _replay(known[op.op_id], actor.job, actor.member)
-    try:
-        with transaction.atomic():
-            row = SyncOperation.objects.create(
-                op_id=op.op_id,
-                job=actor.job,
-                user=actor.user,
-                device_id=actor.device_id,
-                kind=op.kind,
-                result={},
+def _claim(job: Job, member: Member, device_id: str, kinds: dict[uuid.UUID, str]) -> dict:
+    """Claim every op id of the batch in one statement; return {op_id: (row, ours)}.
+
+    A row another request claimed first (committed, or waited for by PostgreSQL's unique index) is
+    not ours: its stored answer is replayed. SQLite serialises writers (immediate transactions).
+    """
+    token = uuid.uuid4().hex
+    SyncOperation.objects.bulk_create(
+        [
+            SyncOperation(
+                op_id=op_id,
+                job=job,
+                user=member.user,
+                device_id=device_id,
+                kind=kind[:30],
+                result={"claimed_by": token},
             )
-            result, conflict = _run(actor, op, events)
-            answer = {"op_id": str(op.op_id), "kind": op.kind, **result}
-            row.result = answer
-            row.save(update_fields=["result"])
-            if conflict is not None:
-                Conflict.objects.filter(pk=conflict.pk).update(operation=row)
-    except IntegrityError:
-        # The same op_id was claimed by a concurrent request a moment ago: answer as it did.
-        row = SyncOperation.objects.filter(op_id=op.op_id).first()
-        if row is None:
-            raise
-        return _replay(row, actor.job, actor.member)
-    return answer
+            for op_id, kind in kinds.items()
+        ],
+        ignore_conflicts=True,
+    )
+    rows = SyncOperation.objects.filter(op_id__in=list(kinds))
+    return {row.op_id: (row, row.result == {"claimed_by": token}) for row in rows}
 
 
-def _rejected_envelope(actor: Actor, raw: Any, exc: Reject, known: dict) -> dict:
-    """An operation whose envelope is bad: stored as rejected when it has a usable op_id."""
+def _envelope_answer(raw: Any, exc: Reject) -> tuple[uuid.UUID | None, str, dict]:
+    """An operation whose envelope is bad: its answer, and its op id when it has a usable one."""
     op_id = raw.get("op_id") if isinstance(raw, dict) else None
     answer = {"op_id": op_id if isinstance(op_id, str) else None, "status": "rejected", "errors": exc.errors}
     try:
         parsed = uuid.UUID(op_id) if isinstance(op_id, str) else None
     except ValueError:
         parsed = None
-    if parsed is None:
-        return answer
-    if parsed in known:
-        return _replay(known[parsed], actor.job, actor.member)
-    kind = raw.get("kind") if isinstance(raw.get("kind"), str) else ""
-    try:
-        with transaction.atomic():
-            SyncOperation.objects.create(
-                op_id=parsed,
-                job=actor.job,
-                user=actor.user,
-                device_id=actor.device_id,
-                kind=kind[:30],
-                result=answer,
-            )
-    except IntegrityError:
-        row = SyncOperation.objects.filter(op_id=parsed).first()
-        if row is not None:
-            return _replay(row, actor.job, actor.member)
-    return answer
+    kind = raw.get("kind") if isinstance(raw, dict) and isinstance(raw.get("kind"), str) else ""
+    return parsed, kind, answer
 
 
 def apply_batch(job: Job, member: Member, ops: Any, device_id: Any = "") -> list[dict]:
@@ -363,18 +392,46 @@ def apply_batch(job: Job, member: Member, ops: Any, device_id: Any = "") -> list
             parsed.append(parse_operation(raw))
         except Reject as exc:
             parsed.append((raw, exc))
-    ids = [p.op_id for p in parsed if isinstance(p, Operation)]
-    answers = []
+    envelopes = {id(item): _envelope_answer(*item) for item in parsed if not isinstance(item, Operation)}
+    kinds: dict[uuid.UUID, str] = {}
+    for item in parsed:
+        if isinstance(item, Operation):
+            kinds.setdefault(item.op_id, item.kind)
+        elif envelopes[id(item)][0] is not None:
+            kinds.setdefault(envelopes[id(item)][0], envelopes[id(item)][1])
+    answers: list[dict] = []
     with transaction.atomic(), deferred_invalidation(), buffered_events() as events:
-        known = {row.op_id: row for row in SyncOperation.objects.filter(op_id__in=ids)}
-        for item in parsed:
-            if isinstance(item, Operation):
-                actor = Actor(member, device_at=item.device_at, device_id=device_id)
-                answers.append(_apply(actor, item, events, known))
-            else:
-                answers.append(
-                    _rejected_envelope(Actor(member, device_id=device_id), item[0], item[1], known)
-                )
+        claims = _claim(job, member, device_id, kinds)
+        done: dict[uuid.UUID, dict] = {}
+        links: list[tuple[Conflict, SyncOperation]] = []
+        token = _PREFETCHED.set(_prefetch(job, [p for p in parsed if isinstance(p, Operation)]))
+        try:
+            for item in parsed:
+                op_id = item.op_id if isinstance(item, Operation) else envelopes[id(item)][0]
+                row, ours = claims.get(op_id, (None, False)) if op_id is not None else (None, False)
+                if op_id in done:  # the same op twice in one batch: the first answer stands
+                    answers.append(done[op_id])
+                elif row is not None and not ours:
+                    answers.append(_replay(row, job, member))
+                elif isinstance(item, Operation):
+                    answer, conflict = _apply(Actor(member, item.device_at, device_id), item, events)
+                    done[item.op_id] = answer
+                    answers.append(answer)
+                    if conflict is not None:
+                        links.append((conflict, row))
+                else:
+                    answer = envelopes[id(item)][2]
+                    if op_id is not None:
+                        done[op_id] = answer
+                    answers.append(answer)
+        finally:
+            _PREFETCHED.reset(token)
+        mine = [row for row, ours in claims.values() if ours]
+        for row in mine:
+            row.result = done.get(row.op_id, row.result)
+        SyncOperation.objects.bulk_update(mine, ["result"])
+        for conflict, row in links:
+            Conflict.objects.filter(pk=conflict.pk).update(operation=row)
     return answers
 
 
