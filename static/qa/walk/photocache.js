@@ -19,10 +19,16 @@ export function fullUrl(photo) {
   return photo.image_url || String(photo.thumbnail_url).replace(/\/thumb$/, "/image");
 }
 
+/** The bound in bytes: MAX_BYTES, unless this phone was given another (meta "photo-cache-max"). */
+export async function limit() {
+  return Number(await db.meta("photo-cache-max", MAX_BYTES)) || MAX_BYTES;
+}
+
 async function evict(cache, idx) {
   idx.sort((a, b) => a.at.localeCompare(b.at));
   let total = idx.reduce((s, e) => s + e.bytes, 0);
-  while (total > MAX_BYTES && idx.length) {
+  const most = await limit();
+  while (total > most && idx.length) {
     const old = idx.shift();
     total -= old.bytes;
     await cache.delete(old.url);
@@ -112,8 +118,12 @@ export async function cachedBlobUrl(url) {
 
 /** Forget every photo of a job (the job was removed from the phone). */
 export async function purgeJob(job) {
-  const idx = await readIndex();
-  const cache = "caches" in self ? await caches.open(CACHE) : null;
-  for (const e of idx) if (e.job === job && cache) await cache.delete(e.url);
-  await db.setMeta(INDEX, idx.filter((e) => e.job !== job));
+  if ("caches" in self) {
+    // By address as well as by index: a download still running when the job was removed may have
+    // stored a photo the index does not list yet.
+    const cache = await caches.open(CACHE);
+    const prefix = `/jobs/${job}/photos/`;
+    for (const req of await cache.keys()) if (new URL(req.url).pathname.startsWith(prefix)) await cache.delete(req);
+  }
+  await db.setMeta(INDEX, (await readIndex()).filter((e) => e.job !== job));
 }

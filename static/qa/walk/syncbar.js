@@ -48,11 +48,11 @@ export function renderSyncBar(bar, ctx) {
     conflicts ? h("a", { class: "count conflict", href: `#/j/${state.job.id}/conflicts`, "data-conflicts": conflicts },
       plural(conflicts, "conflict", "conflicts")) : null,
     h("span", { class: "last", "data-last-sync": state.lastSync || "" },
-      state.lastSync ? `synced ${fmtTime(state.lastSync)}` : "not synced yet"),
+      state.lastSync ? `synced ${fmtTime(state.lastSync)}` : "not synced"),
     h("button", {
       type: "button", class: "sync-now", "data-sync-now": "", disabled: !online || s.state === "syncing",
       onclick: () => sync.syncNow(state.job.id),
-    }, s.state === "syncing" ? "Syncing…" : "Sync now"));
+    }, s.state === "syncing" ? "Syncing…" : "Sync"));
   const extra = [];
   if (s.state === "failed") extra.push(h("p", { class: "sync-error", role: "alert" }, s.error, " Trying again soon."));
   if (state.problems.length) {

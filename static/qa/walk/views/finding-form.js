@@ -121,7 +121,7 @@ export async function findingFormView(root, ctx) {
     photoStatus, previews,
     saveError,
     h("div", { class: "form-actions" },
-      h("a", { class: "button", href: back }, "Cancel"),
+      h("a", { class: "button", href: back, onclick: () => { if (!editing && point) ui.focusPoint = point.id; } }, "Cancel"),
       h("button", { type: "submit", class: "primary", "data-save": "" }, editing ? "Save changes" : "Save finding")));
 
   const showError = (name, message) => {
@@ -199,6 +199,7 @@ export async function findingFormView(root, ctx) {
         size: p.size, sha256: p.sha256, width: p.width, height: p.height, captured_at: p.captured_at });
     }
     soon(state.job.id);
+    if (!editing && point) ui.focusPoint = point.id;
     ctx.go(editing ? `#/j/${state.job.id}/f/${cid}` : `#/j/${state.job.id}/w/${wall.id}`);
   });
   replace(root, form);

@@ -37,10 +37,12 @@ export function statusLabel(state, status) {
 
 /** The sections of a wall's checklist: face A, through the wall, face B (each with its points). */
 export function sections(state, wall) {
+  const named = (letter, label) => (!label || label.trim().toLowerCase() === `face ${letter}`.toLowerCase()
+    ? `Face ${letter}` : `Face ${letter} · ${label}`);
   const groups = [
-    { face: "a", title: `Face A · ${wall.face_a_label}`, short: "face A", points: [] },
+    { face: "a", title: named("A", wall.face_a_label), short: "face A", points: [] },
     { face: "through", title: "Through the wall", short: "the through-wall checks", points: [] },
-    { face: "b", title: `Face B · ${wall.face_b_label}`, short: "face B", points: [] },
+    { face: "b", title: named("B", wall.face_b_label), short: "face B", points: [] },
   ];
   for (const p of pointsOf(state, wall.id)) {
     (groups.find((g) => g.face === p.face) || groups[1]).points.push(p);
@@ -77,6 +79,17 @@ function pointDetails(state, p) {
     p.correct ? h("p", {}, h("strong", {}, "Correct: "), p.correct) : null,
     p.usual_defect ? h("p", {}, h("strong", {}, "Usual defect: "), p.usual_defect) : null,
     caution ? h("p", { class: "seal-caution-text" }, h("strong", {}, `⚠ ${caution.title}. `), caution.text) : null);
+}
+
+/** The cautions of this wall's seal points, once, near the top: titles at a glance, full text on a tap. */
+function cautionsBlock(state, points) {
+  const keys = [...new Set(points.map((p) => p.caution).filter((k) => k && state.bundle.cautions[k]))];
+  if (!keys.length) return null;
+  const list = keys.map((k) => state.bundle.cautions[k]);
+  return h("details", { class: "wall-cautions", "data-wall-cautions": keys.length },
+    h("summary", {}, h("span", { "aria-hidden": "true" }, "⚠ "), list.map((c) => c.title).join(" · ")),
+    h("ul", {}, list.map((c) => h("li", {}, h("strong", {}, `${c.title}. `), c.text))),
+    h("p", { class: "hint" }, "Marked ⚠ on the seal points they apply to. Local codes and the authority having jurisdiction govern."));
 }
 
 export async function wallView(root, ctx) {
@@ -117,12 +130,12 @@ export async function wallView(root, ctx) {
     return h("li", { class: `seal status-${p.status}`, "data-point": p.id, "data-status": p.status },
       h("button", { type: "button", class: "seal-head", "aria-expanded": String(more), "aria-controls": `more-${p.id}`,
         "data-more": p.id, onclick: () => { (more ? ui.more.delete(p.id) : ui.more.add(p.id)); rerender(); } },
-        h("span", { class: "mark", "aria-hidden": "true" }),
+        p.status === "unchecked" ? null : h("span", { class: "mark", "aria-hidden": "true" }),
         h("span", { class: "seal-text" },
-          h("span", { class: "seal-label" }, label),
-          h("span", { class: "seal-sub" }, `${p.trade} · `, h("strong", {}, STATUS_TEXT[p.status] || p.status),
-            caution ? h("span", { class: "seal-caution" }, ` · ⚠ ${caution.title}`) : null)),
-        h("span", { class: "more-sign", "aria-hidden": "true" }, more ? "−" : "ⓘ")),
+          h("span", { class: "seal-label" }, label,
+            caution ? h("span", { class: "seal-warn", title: caution.title }, " ⚠", h("span", { class: "visually-hidden" }, ` ${caution.title}`)) : null),
+          p.status === "unchecked" ? null : h("span", { class: "seal-sub" }, h("strong", {}, STATUS_TEXT[p.status] || p.status)),
+          h("span", { class: "more-sign" }, more ? "less ▴" : "what to check ▾"))),
       more ? pointDetails(state, p) : null,
       own.length ? h("ul", { class: "point-findings" }, own.map((f) => h("li", {},
         h("a", { href: `#/j/${state.job.id}/f/${f.client_id}`, "data-point-finding": f.client_id },
@@ -133,11 +146,11 @@ export async function wallView(root, ctx) {
           onclick: () => { ui.retry = pr.op_id; } }, "Record again") : null)),
       inspector ? h("div", { class: "seal-actions", role: "group", "aria-label": `${label}: record` },
         h("button", { type: "button", class: "pass", "aria-pressed": String(p.status === "pass"),
-          "aria-label": `Pass: ${label}`, "data-act": "pass", onclick: tick(p, "pass") }, "✓ Pass"),
+          "aria-label": `Pass: ${label}`, "data-act": "pass", onclick: tick(p, "pass") }, "✓"),
         h("button", { type: "button", class: "na", "aria-pressed": String(p.status === "na"),
           "aria-label": `Not applicable: ${label}`, "data-act": "na", onclick: tick(p, "na") }, "N/A"),
         h("a", { class: "button defect", href: `#/j/${state.job.id}/w/${wall.id}/new/${p.id}`,
-          "aria-label": `Record a defect: ${label}`, "data-act": "defect" }, own.length ? "+ Another" : "+ Defect")) : null);
+          "aria-label": `Record a defect: ${label}`, "data-act": "defect" }, own.length ? "+1" : "Defect")) : null);
   };
 
   const sectionBlock = (g) => {
@@ -179,6 +192,7 @@ export async function wallView(root, ctx) {
       inspector && all.length ? h("div", { class: "progress-line", "data-progress": `${checked}/${all.length}` },
         h("span", {}, `${checked} of ${all.length} checked`),
         h("progress", { max: all.length, value: checked, "aria-hidden": "true" })) : null),
+    cautionsBlock(state, all),
     auditPanel(state, wall, findings),
     inspector ? h("div", { "data-points": "" }, sections(state, wall).map(sectionBlock)) : null,
     h("h2", { class: "findings-h" }, `Findings (${findings.length})`),
@@ -187,6 +201,15 @@ export async function wallView(root, ctx) {
     wall.fire_rated ? h("p", { class: "cautions" },
       "Fire-rated wall: acoustical sealant is not a firestop. Penetrations and joints need the listed firestop system; local codes and the authority having jurisdiction govern.") : null);
 
+  // Back from recording a defect: the screen opens at that seal point, not at the top of the wall.
+  if (ui.focusPoint) {
+    const id = ui.focusPoint;
+    ui.focusPoint = null;
+    requestAnimationFrame(() => {
+      const el = root.querySelector(`[data-point='${id}']`);
+      if (el) el.scrollIntoView({ block: "start" });
+    });
+  }
   if (!inspector) return;
   const nextWall = unchecked ? null : nextWallToWalk(state, wall);
   ctx.dock(unchecked
