@@ -196,3 +196,43 @@ def test_database_connection_cut_during_a_sync_batch(server):
     assert status == 200 and {r["status"] for r in body["results"]} == {"applied"}
     assert_exact(server, ops)
     del first_status
+
+
+def small_photo(seed: int) -> bytes:
+    img = Image.frombytes("RGB", (64, 48), random.Random(seed).randbytes(64 * 48 * 3)).resize((640, 480))
+    buf = io.BytesIO()
+    img.save(buf, "JPEG", quality=85)
+    return buf.getvalue()
+
+
+def test_ten_parallel_photo_posts_with_one_id_leave_one_photo_and_no_orphan_file(server):
+    """The row claims the id before any file is written: the nine that lose the race write nothing.
+
+    Each post carries different bytes, so an orphan could not hide behind a file of the same name:
+    the storage gives a clashing name a random suffix, and every file under the job's photo folder
+    that starts with the id is counted.
+    """
+    from concurrent.futures import ThreadPoolExecutor
+    from pathlib import Path
+
+    photo_id = str(uuid.uuid4())
+    bodies = [
+        multipart({"id": photo_id, "wall": server.walls[1], "purpose": "defect"}, "wall.jpg", small_photo(n))
+        for n in range(10)
+    ]
+    start = threading.Barrier(10)
+
+    def post(body):
+        start.wait()
+        return server.request("POST", f"/api/jobs/{server.job}/photos/", "insp", body, timeout=60)
+
+    with ThreadPoolExecutor(10) as pool:
+        answers = list(pool.map(post, bodies))
+    statuses = sorted(status for status, _ in answers)
+    assert statuses == [200] * 9 + [201], [(s, str(b)[:160]) for s, b in answers]
+    assert {body["id"] for _, body in answers} == {photo_id}
+    rows = db_query(server, "SELECT id FROM qa_photo WHERE job_id = %s", (server.job,))
+    assert [str(uuid.UUID(str(r[0]))) for r in rows].count(photo_id) == 1
+    folder = Path(server.extra["tmp"]) / "media" / "photos" / str(server.job)
+    files = sorted(p.name for p in folder.iterdir() if p.name.startswith(photo_id))
+    assert files == [f"{photo_id}-thumb.jpg", f"{photo_id}.jpg"], files
