@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import copy
+import json
 import math
 
 from django.contrib.auth import get_user_model
@@ -77,6 +78,8 @@ class JobSerializer(serializers.ModelSerializer):
         member = self._member(job)
         return member.trade or None if member else None
 
+
+LAYERS_MAX = 20_000
 
 #: The one answer for a name that cannot be added, whether no account has it or the account cannot
 #: join: an inspector learns nothing about accounts outside their jobs from it.
@@ -157,6 +160,12 @@ class WallTypeSerializer(serializers.ModelSerializer):
             "updated_at",
         ]
         read_only_fields = ["id", "design_rating", "updated_at"]
+
+    def validate_layers(self, layers):
+        # Stored as given for a lab wall type: bounded like free text (a real build-up is < 2 KB).
+        if len(json.dumps(layers)) > LAYERS_MAX:
+            raise serializers.ValidationError(f"at most {LAYERS_MAX} characters of JSON")
+        return layers
 
     def validate_code(self, code):
         clash = WallType.objects.filter(job=self.context["job"], code=code)
@@ -306,6 +315,7 @@ class FindingSerializer(serializers.ModelSerializer):
     depth = UnitField("gap", source="depth_m", required=False, allow_null=True)
     area = UnitField("area", source="area_m2", required=False, allow_null=True)
     count = serializers.IntegerField(min_value=1, max_value=500, required=False)
+    along = UnitField("size", source="along_m", required=False, allow_null=True)
     note = serializers.CharField(max_length=2000, required=False, allow_blank=True)
     created_by = serializers.SlugRelatedField(slug_field="username", read_only=True)
     photos = serializers.SerializerMethodField()
@@ -327,6 +337,9 @@ class FindingSerializer(serializers.ModelSerializer):
             "fill",
             "at_edge",
             "count",
+            "along",
+            "along_from",
+            "height_band",
             "trade",
             "note",
             "status",
@@ -390,6 +403,12 @@ class FindingSerializer(serializers.ModelSerializer):
             raise serializers.ValidationError({"seal_point": ["belongs to another wall"]})
         if self.instance is not None and "wall" in attrs and attrs["wall"].id != self.instance.wall_id:
             raise serializers.ValidationError({"wall": ["a finding cannot move to another wall"]})
+        along = attrs.get("along_m", getattr(self.instance, "along_m", None))
+        if along is not None:
+            if along < 0 or along > wall.length_m:
+                raise serializers.ValidationError({"along": ["must be between zero and the wall's length"]})
+            if not attrs.get("along_from", getattr(self.instance, "along_from", "")):
+                attrs["along_from"] = "start"
         errors = geometry_errors(kind, face, dims, wall)
         if errors:
             raise serializers.ValidationError({SI_TO_API.get(k, k): [v] for k, v in errors.items()})

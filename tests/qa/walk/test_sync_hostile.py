@@ -366,3 +366,14 @@ def test_seal_point_text_is_bounded(field, world, api):
     assert r.status_code == 400 and "2000" in r.json()[field][0]
     point.refresh_from_db()
     assert len(getattr(point, field)) < 2000
+
+
+def test_wall_type_layers_are_bounded(world, api):
+    r = api(world.inspector).patch(
+        f"/api/jobs/{world.job.id}/wall-types/{world.wall_type.id}/",
+        {"layers": {"note": HUNDRED_KB}},
+        format="json",
+    )
+    assert r.status_code == 400 and "20000 characters" in r.json()["layers"][0]
+    world.wall_type.refresh_from_db()
+    assert world.wall_type.layers == {}
