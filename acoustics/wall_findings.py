@@ -16,9 +16,10 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, Literal, overload
 
 import numpy as np
+import numpy.typing as npt
 
 from . import defects
 from .assembly import Assembly
@@ -70,7 +71,7 @@ class Part:
     id: str
     kind: str
     label: str
-    linear: np.ndarray
+    linear: npt.NDArray[np.float64]
     ports: tuple[Port, ...] = ()
     path: str = ""
     path_kind: str = ""
@@ -80,7 +81,7 @@ class Part:
 
 
 # ------------------------------------------------------------------ spec reading
-def _f(spec: dict, key: str, where: str, default: Any = None, *, positive: bool = True) -> Any:
+def _f(spec: dict[str, Any], key: str, where: str, default: Any = None, *, positive: bool = True) -> Any:
     v = spec.get(key, default)
     if v is None:
         return None
@@ -93,15 +94,24 @@ def _f(spec: dict, key: str, where: str, default: Any = None, *, positive: bool 
     return x
 
 
-def _need(spec: dict, key: str, where: str) -> float:
+def _need(spec: dict[str, Any], key: str, where: str) -> float:
     v = _f(spec, key, where)
     if v is None:
         raise GeometryError(f"{where}.{key} is required for kind {spec.get('kind')!r}")
-    return v
+    return float(v)
 
 
 @lru_cache(maxsize=4096)
-def _gap_leak(kind: str, fill: str, width, length, diameter, area, depth: float, edge: bool) -> Leak:
+def _gap_leak(
+    kind: str,
+    fill: str,
+    width: float,
+    length: float,
+    diameter: float,
+    area: float,
+    depth: float,
+    edge: bool,
+) -> Leak:
     """A slit, hole, ring or open area as a path of ``depth`` m (memoised: templates repeat geometry)."""
     if kind == "open_area" and fill == "none":
         return open_area(area)
@@ -122,12 +132,13 @@ def _gap_leak(kind: str, fill: str, width, length, diameter, area, depth: float,
     return slit(w, L, depth, edge=edge) if shape == "slit" else hole(w, depth)
 
 
-def _gap(spec: dict, where: str, depth: float) -> Leak:
+def _gap(spec: dict[str, Any], where: str, depth: float) -> Leak:
     kind = spec["kind"]
     fill = spec.get("fill", "none")
     if fill not in ("none", "fibre", "skin"):
         raise GeometryError(f"{where}.fill must be 'none', 'fibre' or 'skin', got {fill!r}")
-    w = L = dia = a = None
+    # A dimension the kind does not use stays 0.0 and is never read.
+    w = L = dia = a = 0.0
     if kind == "slit":
         w, L = _need(spec, "width", where), _need(spec, "length", where)
     elif kind == "hole":
@@ -135,15 +146,14 @@ def _gap(spec: dict, where: str, depth: float) -> Leak:
     elif kind == "ring":
         w, dia = _need(spec, "width", where), _need(spec, "diameter", where)
     else:
-        a = _f(spec, "area", where)
-        if a is None:
-            a = _need(spec, "width", where) * _need(spec, "length", where)
+        given = _f(spec, "area", where)
+        a = _need(spec, "width", where) * _need(spec, "length", where) if given is None else given
     edge = spec.get("edge") in ("bottom", "head", "side")
     return _gap_leak(kind, fill, w, L, dia, a, round(float(depth), 6), edge)
 
 
 @lru_cache(maxsize=512)
-def _unit_defect(asm: Assembly, kind: str, face: int, remaining: float) -> np.ndarray:
+def _unit_defect(asm: Assembly, kind: str, face: int, remaining: float) -> npt.NDArray[np.float64]:
     if kind == "missing_insulation":
         return defects.insulation_defect(asm, 1.0, remaining_thickness=remaining).area
     if kind == "channel_short":
@@ -151,7 +161,11 @@ def _unit_defect(asm: Assembly, kind: str, face: int, remaining: float) -> np.nd
     return defects.missing_layer(asm, face, 1.0).area
 
 
-def _face(spec: dict, where: str, allow_through: bool = True) -> int | None:
+@overload
+def _face(spec: dict[str, Any], where: str, allow_through: Literal[False]) -> int: ...
+@overload
+def _face(spec: dict[str, Any], where: str, allow_through: bool = True) -> int | None: ...
+def _face(spec: dict[str, Any], where: str, allow_through: bool = True) -> int | None:
     f = spec.get("face", "through")
     if f in ("a", "A", 0):
         return 0
@@ -162,7 +176,9 @@ def _face(spec: dict, where: str, allow_through: bool = True) -> int | None:
     raise GeometryError(f"{where}.face must be 'a', 'b'{' or through' if allow_through else ''}, got {f!r}")
 
 
-def read_finding(i: int, spec: dict, con: Construction, doors: Sequence[DoorSet], area: float) -> Part:
+def read_finding(
+    i: int, spec: dict[str, Any], con: Construction, doors: Sequence[DoorSet], area: float
+) -> Part:
     where = f"findings[{i}]"
     if not isinstance(spec, dict):
         raise GeometryError(f"{where} must be a mapping with a 'kind'")
@@ -199,7 +215,9 @@ def read_finding(i: int, spec: dict, con: Construction, doors: Sequence[DoorSet]
         raise GeometryError(msg if msg.startswith(where) else f"{where}: {msg}") from None
 
 
-def _gap_part(spec: dict, where: str, con: Construction, count: int, x: float | None, common: dict) -> Part:
+def _gap_part(
+    spec: dict[str, Any], where: str, con: Construction, count: int, x: float | None, common: dict[str, Any]
+) -> Part:
     face = _face(spec, where)
     edge = spec.get("edge")
     if edge not in (None, "bottom", "head", "side"):
@@ -227,7 +245,7 @@ def _gap_part(spec: dict, where: str, con: Construction, count: int, x: float | 
             edge_width=float(spec.get("width") or 0.0),
             **common,
         )
-    geom = con.geometry
+    geom = con.cavity
     if spec["kind"] == "ring" and not spec.get("sleeve", False):
         pipe_fill = spec.get("pipe_fill", "packed")
         if pipe_fill not in ("packed", "none"):
@@ -281,7 +299,9 @@ def _gap_part(spec: dict, where: str, con: Construction, count: int, x: float | 
     )
 
 
-def _box_part(spec: dict, where: str, con: Construction, count: int, x: float | None, common: dict) -> Part:
+def _box_part(
+    spec: dict[str, Any], where: str, con: Construction, count: int, x: float | None, common: dict[str, Any]
+) -> Part:
     box = BoxSpec(
         leak_area=_f(spec, "leak_area", where, 6.45e-4, positive=False),
         oversize=_f(spec, "oversize", where, 0.0, positive=False),
@@ -305,7 +325,7 @@ def _box_part(spec: dict, where: str, con: Construction, count: int, x: float | 
             flags=con.flags,
             **common,
         )
-    pa, pb, joint, text = box_pair(box, con.geometry, con.boards[:2], con.leaf_cross())
+    pa, pb, joint, text = box_pair(box, con.cavity, (con.boards[0], con.boards[1]), con.leaf_cross())
     a, b = pa.area * count, pb.area * count
     lin = con.face_factor(0) * a + con.face_factor(1) * b + joint * count
     xb = None if x is None else x + box.offset
@@ -319,11 +339,15 @@ def _box_part(spec: dict, where: str, con: Construction, count: int, x: float | 
     )
 
 
-def _door_part(spec: dict, where: str, doors: Sequence[DoorSet], count: int, common: dict) -> Part:
+def _door_part(
+    spec: dict[str, Any], where: str, doors: Sequence[DoorSet], count: int, common: dict[str, Any]
+) -> Part:
     k = spec.get("door", 0)
     if isinstance(k, bool) or not isinstance(k, int) or not 0 <= k < len(doors):
         raise GeometryError(f"{where}.door must index one of the wall's {len(doors)} door(s), got {k!r}")
-    part, state = spec.get("part"), spec.get("state")
+    # Checked (and named in the error) by door_leak.
+    part: Any = spec.get("part")
+    state: Any = spec.get("state")
     lk = door_leak(doors[k], part, state, width=_f(spec, "width", where), length=_f(spec, "length", where))
     return Part(
         linear=lk.area * count,
@@ -334,7 +358,9 @@ def _door_part(spec: dict, where: str, doors: Sequence[DoorSet], count: int, com
     )
 
 
-def _defect_part(spec: dict, where: str, con: Construction, count: int, area: float, common: dict) -> Part:
+def _defect_part(
+    spec: dict[str, Any], where: str, con: Construction, count: int, area: float, common: dict[str, Any]
+) -> Part:
     kind = spec["kind"]
     asm = con.assembly
     if asm is None or con.leaves != 2:

@@ -44,6 +44,7 @@ from functools import lru_cache
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .assembly import Assembly
 from .bands import N_BANDS
@@ -53,6 +54,8 @@ from .errors import GeometryError
 from .leaks import series_slit
 from .wall_findings import FINDING_KINDS, SPEC_KEYS, Part, _f, read_finding
 from .walls import predict
+
+Floats = npt.NDArray[np.float64]
 
 __all__ = [
     "WallModel",
@@ -108,9 +111,9 @@ class Construction:
     flags : tuple of str
     """
 
-    tl: np.ndarray
-    leaf_tau: tuple[np.ndarray, ...] | None
-    cavity_tau: np.ndarray | None
+    tl: Floats
+    leaf_tau: tuple[Floats, ...] | None
+    cavity_tau: Floats | None
     leaves: int
     boards: tuple[float, ...]
     depth: float
@@ -119,17 +122,31 @@ class Construction:
     single_plate: bool = True
     flags: tuple[str, ...] = ()
 
-    def leaf_cross(self) -> np.ndarray:
+    @property
+    def cavity(self) -> CavityGeometry:
+        """The cavity of a two-leaf wall (a single-leaf wall has none)."""
+        if self.geometry is None:
+            raise GeometryError("a single-leaf wall has no cavity")
+        return self.geometry
+
+    def _two_leaf_tau(self) -> tuple[tuple[Floats, ...], Floats]:
+        if self.leaf_tau is None or self.cavity_tau is None:
+            raise GeometryError("a single-leaf wall has no leaf or cavity-path tau")
+        return self.leaf_tau, self.cavity_tau
+
+    def leaf_cross(self) -> Floats:
         """The leaf model's own cross term per unit area pair, 1/m^2: tau_cav / (tau_1 tau_2 S).
 
         W = S K (tau_1 + a/S)(tau_2 + b/S) with K = tau_cav / (tau_1 tau_2) holds a b K / S; the joined
         path of two openings is never taken below it (the diffuse-cavity term, counted once).
         """
-        return self.cavity_tau / (self.leaf_tau[0] * self.leaf_tau[1] * self.geometry.area)
+        leaf_tau, cavity_tau = self._two_leaf_tau()
+        return cavity_tau / (leaf_tau[0] * leaf_tau[1] * self.cavity.area)
 
-    def face_factor(self, face: int) -> np.ndarray:
+    def face_factor(self, face: int) -> Floats:
         """d W / d a for an opening of transmission area a in leaf ``face``: tau_cav / tau_leaf."""
-        return self.cavity_tau / self.leaf_tau[face]
+        leaf_tau, cavity_tau = self._two_leaf_tau()
+        return cavity_tau / leaf_tau[face]
 
 
 @lru_cache(maxsize=128)
@@ -210,36 +227,35 @@ class WallModel:
 
     construction: Construction
     area: float
-    base: np.ndarray
+    base: Floats
     parts: tuple[Part, ...]
-    cross: np.ndarray
+    cross: Floats
     cross_path: dict[tuple[int, int], str] = field(default_factory=dict)
     flags: tuple[str, ...] = ()
 
     @property
-    def linear(self) -> np.ndarray:
+    def linear(self) -> Floats:
         return np.array([p.linear for p in self.parts]).reshape(len(self.parts), N_BANDS)
 
-    def power(self, x: Any = None) -> np.ndarray:
+    def power(self, x: npt.ArrayLike | None = None) -> Floats:
         """Transmitted power W(x) per band, m^2 (x: open mask, default all open)."""
         n = len(self.parts)
-        x = np.ones(n) if x is None else np.asarray(x, dtype=float)
-        return self.base + x @ self.linear + 0.5 * np.einsum("k,klb,l->b", x, self.cross, x)
+        mask = np.ones(n) if x is None else np.asarray(x, dtype=np.float64)
+        w: Floats = self.base + mask @ self.linear + 0.5 * np.einsum("k,klb,l->b", mask, self.cross, mask)
+        return w
 
-    def tl(self, x: Any = None) -> np.ndarray:
+    def tl(self, x: npt.ArrayLike | None = None) -> Floats:
         """TL of the wall with the findings of mask x open, dB."""
         return -10.0 * np.log10(self.power(x) / self.area)
 
 
 # ------------------------------------------------------------------ cross terms
 @lru_cache(maxsize=1024)
-def _join_leak(
-    wa: float, ta: float, gap: float, plate: float, wb: float, tb: float, length: float
-) -> np.ndarray:
+def _join_leak(wa: float, ta: float, gap: float, plate: float, wb: float, tb: float, length: float) -> Floats:
     return series_slit([(wa, ta), (gap, plate), (wb, tb)], length).area
 
 
-def _plate_join(p: Port, q: Port, wp: float, wq: float, con: Construction, gap: float) -> np.ndarray | None:
+def _plate_join(p: Port, q: Port, wp: float, wq: float, con: Construction, gap: float) -> Floats | None:
     """Gaps along one edge of both faces joined under a single plate: face gap, plate joint, face gap."""
     if not (
         con.single_plate
@@ -257,10 +273,12 @@ def _plate_join(p: Port, q: Port, wp: float, wq: float, con: Construction, gap: 
         return np.zeros(N_BANDS)
     a, b = (p, q) if p.face == 0 else (q, p)
     wa, wb = (wp, wq) if p.face == 0 else (wq, wp)
-    return _join_leak(wa, con.boards[0], gap, con.geometry.depth, wb, con.boards[1], round(ov, 6))
+    return _join_leak(wa, con.boards[0], gap, con.cavity.depth, wb, con.boards[1], round(ov, 6))
 
 
-def _cross(parts: Sequence[Part], con: Construction, gap: float) -> tuple[np.ndarray, dict, set[str]]:
+def _cross(
+    parts: Sequence[Part], con: Construction, gap: float
+) -> tuple[Floats, dict[tuple[int, int], str], set[str]]:
     n = len(parts)
     m = np.zeros((n, n, N_BANDS))
     how: dict[tuple[int, int], str] = {}
@@ -281,7 +299,7 @@ def _cross(parts: Sequence[Part], con: Construction, gap: float) -> tuple[np.nda
                         kinds.append("under the plate")
                         flags.add("plate_joint_assumed")
                         continue
-                    x, kind = pair_coupling(con.geometry, p, q)
+                    x, kind = pair_coupling(con.cavity, p, q)
                     total += p.area * q.area * np.maximum(x, con.leaf_cross())
                     kinds.append(kind)
                     if kind == "reverberant":
@@ -297,9 +315,9 @@ def wall_model(
     area: float,
     *,
     height: float = 2.7,
-    openings: Sequence[dict] = (),
-    doors: Sequence[DoorSet | dict] = (),
-    findings: Sequence[dict] = (),
+    openings: Sequence[dict[str, Any]] = (),
+    doors: Sequence[DoorSet | dict[str, Any]] = (),
+    findings: Sequence[dict[str, Any]] = (),
     plate_gap: float = PLATE_GAP,
 ) -> WallModel:
     """Build a wall's whole model.
