@@ -19,11 +19,12 @@ References
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .bands import BAND_INDEX, N_BANDS
 from .leaks import FLAG_TEXT, Leak
@@ -36,7 +37,7 @@ _I500 = BAND_INDEX[500]
 _WEIGHTS = {r: rating_weights(r) for r in RATINGS}
 
 
-def _json_list(a: np.ndarray) -> list:
+def _json_list(a: npt.ArrayLike) -> list[float | None]:
     return [None if not math.isfinite(v) else v for v in np.asarray(a, dtype=float).tolist()]
 
 
@@ -307,7 +308,7 @@ def _greedy(
     amat: np.ndarray,
     inv_s: float,
     wpow: np.ndarray,
-    rater,
+    rater: Callable[[npt.NDArray[np.float64]], npt.NDArray[np.float64]],
     designed: int,
     lookahead: int = LOOKAHEAD,
 ) -> tuple[list[int], np.ndarray, np.ndarray]:

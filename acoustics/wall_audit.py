@@ -21,10 +21,12 @@ References
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from typing import Any
 
 import numpy as np
+import numpy.typing as npt
 
 from .leaks import FLAG_TEXT
 from .ratings import LABELS, RATINGS, SMALL_RATERS, check_finite, rating_weights
@@ -39,7 +41,7 @@ INTERACTION_SHARE = 0.1
 _WEIGHTS = {r: rating_weights(r) for r in RATINGS}
 
 
-def _json(a: np.ndarray) -> list:
+def _json(a: npt.ArrayLike) -> list[float | None]:
     return [None if not math.isfinite(v) else round(v, 4) for v in np.asarray(a, dtype=float).tolist()]
 
 
@@ -270,7 +272,17 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
     )
 
 
-def _interactions(model, rater, weights, designed, as_found, gain, total, dw, inv_s) -> list[dict[str, Any]]:
+def _interactions(
+    model: WallModel,
+    rater: Callable[[npt.NDArray[np.float64]], npt.NDArray[np.float64]],
+    weights: npt.NDArray[np.float64],
+    designed: int,
+    as_found: int,
+    gain: npt.NDArray[np.int_],
+    total: npt.NDArray[np.float64],
+    dw: npt.NDArray[np.float64],
+    inv_s: float,
+) -> list[dict[str, Any]]:
     base, lin, cross = model.base, model.linear, model.cross
     wbase = float(base @ weights)
     pairs = [kl for kl in model.cross_path if float(cross[kl] @ weights) >= INTERACTION_SHARE * wbase]
