@@ -22,6 +22,10 @@ Mapping (record -> engine):
   type's layers; on a lab-curve wall the engine refuses them and the finding is listed as not modelled).
 - an edge gap takes its edge (bottom, head, side) from its seal point; ``reported_fixed`` = status
   "fixed" (a crew reported the fix, not yet verified).
+- where the finding records its position along the wall (``along_m`` from the end ``along_from``,
+  ends named as seen from face A), ``x`` is that distance from the left end seen from face A, so
+  openings on opposite faces that face each other are joined by the direct cavity path; without it
+  the engine takes them far apart (flag "position_unknown").
 
 References
 ----------
@@ -159,6 +163,15 @@ def _point(f) -> str:
     return f.seal_point.template_key if f.seal_point is not None else ""
 
 
+def position_x(f, wall_length: float) -> float | None:
+    """The finding's distance from the left end of the wall seen from face A, m (None if not recorded)."""
+    along = getattr(f, "along_m", None)
+    if along is None:
+        return None
+    x = wall_length - along if getattr(f, "along_from", "") == "end" else along
+    return min(max(float(x), 0.0), wall_length)
+
+
 def finding_spec(f, ctx: WallContext) -> dict:
     """One finding as a finding spec of :func:`acoustics.wall_model` (SI; see the module notes).
 
@@ -173,6 +186,9 @@ def finding_spec(f, ctx: WallContext) -> dict:
         "count": int(f.count or 1),
         "reported_fixed": f.status == FindingStatus.FIXED,
     }
+    x = position_x(f, float(ctx.wall.length_m))
+    if x is not None:
+        spec["x"] = x
     if point in DOOR_SEALS and ctx.door_index is not None:
         part, state = DOOR_SEALS[point]
         spec.update(kind="door_seal", door=ctx.door_index, part=part, state=state)
