@@ -93,6 +93,10 @@ def test_fast_walk_fold_next_pass_rest_units_and_next_wall(live_server, small_ph
     assert page.inner_text("label[for='f-area']").endswith("(cm²)")
     assert "m²)" not in page.inner_text("label[for='f-area']").replace("cm²)", "")
     page.fill("#f-area", "6")
+    # Where along the wall: 1.5 m from the far end, high up.
+    page.fill("#f-along", "1.5")
+    page.select_option("#f-along_from", "end")
+    page.click("[data-position] .seg:has-text('High')")
     # While a field is being filled in, the sync bar sits at the end of the page, not over the form.
     page.focus("#f-note")
     bar_position = "() => getComputedStyle(document.querySelector('[data-syncbar]')).position"
@@ -107,6 +111,7 @@ def test_fast_walk_fold_next_pass_rest_units_and_next_wall(live_server, small_ph
     page.wait_for_function(SYNCED, timeout=20000)
     stored = Finding.objects.get(wall=walls[0])
     assert stored.area_m2 == pytest.approx(6e-4, rel=1e-9)  # 6 cm² = 6 × 10⁻⁴ m² (exact)
+    assert (stored.along_m, stored.along_from, stored.height_band) == (pytest.approx(1.5), "end", "high")
 
     # 3. "Next unchecked" from the top goes to the first unchecked point and readies its Pass button.
     page.evaluate("() => window.scrollTo(0, 0)")

@@ -43,24 +43,39 @@ async function store(job, urls, onProgress) {
   const todo = [];
   for (const url of urls) if (!have.has(url) || !(await cache.match(url))) todo.push(url);
   let done = 0;
-  let failed = 0;
+  const total = todo.length;
   const added = [];
+  const again = [];
+  const one = async (url) => {
+    const resp = await fetch(url, { credentials: "same-origin" });
+    if (!resp.ok) throw new Error(String(resp.status));
+    const blob = await resp.blob();
+    await cache.put(url, new Response(blob, { headers: { "Content-Type": blob.type || "image/jpeg" } }));
+    added.push({ url, job, bytes: blob.size, at: new Date().toISOString() });
+  };
   const next = async () => {
     for (let url = todo.shift(); url; url = todo.shift()) {
       try {
-        const resp = await fetch(url, { credentials: "same-origin" });
-        if (!resp.ok) throw new Error(String(resp.status));
-        const blob = await resp.blob();
-        await cache.put(url, new Response(blob, { headers: { "Content-Type": blob.type || "image/jpeg" } }));
-        added.push({ url, job, bytes: blob.size, at: new Date().toISOString() });
+        await one(url);
+        done += 1;
+        onProgress(done, total);
       } catch {
-        failed += 1;
+        again.push(url);
       }
-      done += 1;
-      onProgress(done, done + todo.length);
     }
   };
   await Promise.all(Array.from({ length: PARALLEL }, next));
+  // A weak signal drops some of several requests at once: the misses get one more try, one at a time.
+  let failed = 0;
+  for (const url of again) {
+    try {
+      await one(url);
+      done += 1;
+      onProgress(done, total);
+    } catch {
+      failed += 1;
+    }
+  }
   const fresh = await readIndex(); // another tab may have written meanwhile
   const byUrl = new Map(fresh.map((e) => [e.url, e]));
   for (const e of added) byUrl.set(e.url, e);

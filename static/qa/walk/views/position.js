@@ -48,7 +48,8 @@ export function positionFields(state, wall, start) {
   const read = () => {
     const raw = along.value.trim();
     const checked = band.querySelector("input:checked");
-    const out = { along: null, along_from: null, height_band: checked ? checked.value : null };
+    // Blank, not null, for the two choices: the server keeps "" for "not said".
+    const out = { along: null, along_from: "", height_band: checked ? checked.value : "" };
     if (raw !== "") {
       const n = Number(raw);
       if (!(n >= 0)) return { error: ["along", "Distance along the wall must be a number of zero or more."] };
