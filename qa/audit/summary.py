@@ -245,13 +245,13 @@ def _sub_model(model, keep: list[int]):
         return model
     pos = {k: j for j, k in enumerate(keep)}
     return acoustics.WallModel(
-        model.construction,
-        model.area,
-        model.base,
-        tuple(model.parts[k] for k in keep),
-        model.cross[np.ix_(keep, keep)],
-        {(pos[k], pos[l]): p for (k, l), p in model.cross_path.items() if k in pos and l in pos},
-        model.flags,
+        construction=model.construction,
+        area=model.area,
+        base=model.base,
+        parts=tuple(model.parts[k] for k in keep),
+        cross=model.cross[np.ix_(keep, keep)],
+        cross_path={(pos[k], pos[l]): p for (k, l), p in model.cross_path.items() if k in pos and l in pos},
+        flags=model.flags,
     )
 
 
