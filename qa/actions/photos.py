@@ -13,6 +13,9 @@ from ..models import Finding, Photo, Wall
 from ..photos import clean_photo
 from .context import Actor, Reject
 
+#: Every door (API, walk upload, crew page) holds a caption to this many characters.
+CAPTION_MAX = 200
+
 
 def photo_purpose(actor: Actor, finding: Finding | None, purpose: str) -> str:
     """The purpose a member may store: crews only show the fix of a finding of their trade."""
@@ -43,6 +46,8 @@ def store_photo(
     :class:`qa.photos.PhotoError` for a file that is not an acceptable photo.
     """
     purpose = photo_purpose(actor, finding, purpose)
+    if not isinstance(caption, str) or len(caption) > CAPTION_MAX:
+        raise Reject({"caption": [f"must be text of at most {CAPTION_MAX} characters"]})
     clean = clean_photo(data)
     photo = Photo(
         job=actor.job,

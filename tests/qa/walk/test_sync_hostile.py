@@ -377,3 +377,16 @@ def test_wall_type_layers_are_bounded(world, api):
     assert r.status_code == 400 and "20000 characters" in r.json()["layers"][0]
     world.wall_type.refresh_from_db()
     assert world.wall_type.layers == {}
+
+
+def test_photo_caption_is_bounded_on_the_write_path_itself(world, finding):
+    # Whatever door a photo comes through, the write path refuses a caption over 200 characters
+    # before anything is cleaned or stored.
+    from qa import actions
+    from qa.models import Member, Photo
+
+    actor = actions.Actor(Member.objects.get(job=world.job, user=world.inspector))
+    with pytest.raises(actions.Reject) as caught:
+        actions.store_photo(actor, b"not even decoded", wall=world.wall, caption="c" * 201)
+    assert "200 characters" in caught.value.errors["caption"][0]
+    assert not Photo.objects.exists()
