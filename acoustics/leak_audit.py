@@ -85,15 +85,15 @@ class Audit:
     rating: str
     designed: int
     as_found: int
-    gain: np.ndarray
+    gain: npt.NDArray[np.integer[Any]]
     order: list[int]
-    after: np.ndarray
+    after: npt.NDArray[np.integer[Any]]
     needed: list[int] | None
     target: int | None
-    as_found_tl: np.ndarray
-    after_tl: np.ndarray
-    open_area_500: np.ndarray
-    power_share: np.ndarray
+    as_found_tl: npt.NDArray[np.float64]
+    after_tl: npt.NDArray[np.float64]
+    open_area_500: npt.NDArray[np.float64]
+    power_share: npt.NDArray[np.float64]
     wall_share: float
     flags: tuple[str, ...] = ()
     labels: tuple[str, ...] = field(default=())
@@ -122,7 +122,7 @@ class Audit:
         }
 
 
-def _leak_matrix(leaks: Sequence[Any]) -> tuple[np.ndarray, list[Leak]]:
+def _leak_matrix(leaks: Sequence[Any]) -> tuple[npt.NDArray[np.float64], list[Leak]]:
     if isinstance(leaks, Leak):
         raise ValueError("leaks must be a sequence of Leak objects; wrap a single leak in a list")
     out = []
@@ -218,9 +218,9 @@ def audit(
 
 
 def _run(
-    tl: np.ndarray,
+    tl: npt.NDArray[np.float64],
     s: float,
-    amat: np.ndarray,
+    amat: npt.NDArray[np.float64],
     leak_objs: list[Leak],
     rating: str,
     target: int | None,
@@ -296,22 +296,22 @@ def _run(
 LOOKAHEAD = 8
 
 
-def _nan_zero_sum(a: np.ndarray) -> float:
+def _nan_zero_sum(a: npt.NDArray[np.float64]) -> float:
     """np.nansum of a 1-D array (NaN counted as 0, the same summation), without its call overhead."""
     a[np.isnan(a)] = 0.0
     return float(a.sum())
 
 
 def _greedy(
-    tl: np.ndarray,
-    total: np.ndarray,
-    amat: np.ndarray,
+    tl: npt.NDArray[np.float64],
+    total: npt.NDArray[np.float64],
+    amat: npt.NDArray[np.float64],
     inv_s: float,
-    wpow: np.ndarray,
+    wpow: npt.NDArray[np.float64],
     rater: Callable[[npt.NDArray[np.float64]], npt.NDArray[np.float64]],
     designed: int,
     lookahead: int = LOOKAHEAD,
-) -> tuple[list[int], np.ndarray, np.ndarray]:
+) -> tuple[list[int], npt.NDArray[np.int64], npt.NDArray[np.float64]]:
     """Greedy fix order, several steps per batched rating call when a guess holds.
 
     The tie rule (highest rating, then most weighted power, then the earliest
@@ -381,7 +381,7 @@ def _greedy(
     return order, after, after_tl
 
 
-def _mask_pattern(m: int) -> tuple[np.ndarray, np.ndarray]:
+def _mask_pattern(m: int) -> tuple[npt.NDArray[np.intp], npt.NDArray[np.intp]]:
     """Index pairs (state i, guess l) with l < i: guess l is already fixed in state i."""
     rows = [i for i in range(1, m) for _ in range(i)]
     cols = [l for i in range(1, m) for l in range(i)]

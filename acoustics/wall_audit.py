@@ -77,15 +77,15 @@ class WallAudit:
     designed: int
     as_found: int
     if_reported_fixed: int
-    gain: np.ndarray
+    gain: npt.NDArray[np.integer[Any]]
     order: list[int]
-    after: np.ndarray
+    after: npt.NDArray[np.integer[Any]]
     needed: list[int] | None
     target: int | None
-    designed_tl: np.ndarray
-    as_found_tl: np.ndarray
-    after_tl: np.ndarray
-    power_share: np.ndarray
+    designed_tl: npt.NDArray[np.float64]
+    as_found_tl: npt.NDArray[np.float64]
+    after_tl: npt.NDArray[np.float64]
+    power_share: npt.NDArray[np.float64]
     paths: tuple[str, ...]
     path_kinds: tuple[str, ...]
     flags: tuple[tuple[str, ...], ...]
@@ -130,7 +130,7 @@ class WallAudit:
         }
 
 
-def _tl(w: np.ndarray, inv_s: float) -> np.ndarray:
+def _tl(w: npt.NDArray[np.float64], inv_s: float) -> npt.NDArray[np.float64]:
     return -10.0 * np.log10(w * inv_s)
 
 
