@@ -100,6 +100,19 @@ class Fill(models.TextChoices):
     SKIN = "skin", "Closed by a thin film or tape"
 
 
+class AlongFrom(models.TextChoices):
+    """The end of the wall a defect's distance is measured from (ends named as seen from face A)."""
+
+    START = "start", "left end, seen from face A"
+    END = "end", "right end, seen from face A"
+
+
+class HeightBand(models.TextChoices):
+    LOW = "low", "Low"
+    MIDDLE = "middle", "Middle"
+    HIGH = "high", "High"
+
+
 class SealStatus(models.TextChoices):
     UNCHECKED = "unchecked", "Not checked"
     PASS = "pass", "Pass"

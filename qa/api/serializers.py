@@ -315,6 +315,7 @@ class FindingSerializer(serializers.ModelSerializer):
     depth = UnitField("gap", source="depth_m", required=False, allow_null=True)
     area = UnitField("area", source="area_m2", required=False, allow_null=True)
     count = serializers.IntegerField(min_value=1, max_value=500, required=False)
+    along = UnitField("size", source="along_m", required=False, allow_null=True)
     note = serializers.CharField(max_length=2000, required=False, allow_blank=True)
     created_by = serializers.SlugRelatedField(slug_field="username", read_only=True)
     photos = serializers.SerializerMethodField()
@@ -336,6 +337,9 @@ class FindingSerializer(serializers.ModelSerializer):
             "fill",
             "at_edge",
             "count",
+            "along",
+            "along_from",
+            "height_band",
             "trade",
             "note",
             "status",
@@ -399,6 +403,14 @@ class FindingSerializer(serializers.ModelSerializer):
             raise serializers.ValidationError({"seal_point": ["belongs to another wall"]})
         if self.instance is not None and "wall" in attrs and attrs["wall"].id != self.instance.wall_id:
             raise serializers.ValidationError({"wall": ["a finding cannot move to another wall"]})
+        along = attrs.get("along_m", getattr(self.instance, "along_m", None))
+        if along is not None:
+            if along == 0:
+                along = attrs["along_m"] = 0.0  # never store a negative zero
+            if along < 0 or along > wall.length_m:
+                raise serializers.ValidationError({"along": ["must be between zero and the wall's length"]})
+            if not attrs.get("along_from", getattr(self.instance, "along_from", "")):
+                attrs["along_from"] = "start"
         errors = geometry_errors(kind, face, dims, wall)
         if errors:
             raise serializers.ValidationError({SI_TO_API.get(k, k): [v] for k, v in errors.items()})

@@ -63,6 +63,17 @@ def finding_size(f, u: str) -> str:
     return " ".join(parts) or "—"
 
 
+def position_text(f, wall, u: str) -> str:
+    """Where along the wall: '1.2 m from the left end (seen from Unit 201), low'; '' if not recorded."""
+    parts = []
+    if f.along_m is not None:
+        end = "right" if f.along_from == "end" else "left"
+        parts.append(f"{units.fmt(f.along_m, 'size', u)} from the {end} end (seen from {wall.face_a_label})")
+    if f.height_band:
+        parts.append(f.get_height_band_display().lower())
+    return ", ".join(parts)
+
+
 def item_caution(finding):
     """The caution of a finding's seal point (from its checklist template), or None."""
     point = finding.seal_point
@@ -294,6 +305,7 @@ def wall_overview(job, member, wall, summary: dict, findings: list, verdict: dic
             {
                 "f": f,
                 "size": finding_size(f, u),
+                "position": position_text(f, wall, u),
                 "face": face_name(wall, f.face),
                 "caution": item_caution(f),
                 "feedback": [],

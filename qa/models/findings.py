@@ -7,7 +7,7 @@ from django.conf import settings
 from django.db import models
 from django.utils import timezone
 
-from ..choices import AREA_KINDS, SIZE_RULES, Face, Fill, FindingStatus, GapKind, Trade
+from ..choices import AREA_KINDS, SIZE_RULES, AlongFrom, Face, Fill, FindingStatus, GapKind, HeightBand, Trade
 from ..units import API_TO_SI
 from .jobs import Job
 from .walls import SealPoint, Wall
@@ -108,6 +108,10 @@ class Finding(models.Model):
     fill = models.CharField(max_length=8, choices=Fill.choices, default=Fill.NONE)
     at_edge = models.BooleanField(default=False)
     count = models.PositiveIntegerField(default=1)
+    # Where along the wall: a distance from one named end, and low / middle / high (all optional).
+    along_m = models.FloatField(null=True, blank=True, help_text="Distance from the end named by along_from.")
+    along_from = models.CharField(max_length=8, choices=AlongFrom.choices, blank=True)
+    height_band = models.CharField(max_length=8, choices=HeightBand.choices, blank=True)
     trade = models.CharField(max_length=12, choices=Trade.choices)
     note = models.TextField(blank=True, max_length=2000)
     status = models.CharField(max_length=10, choices=FindingStatus.choices, default=FindingStatus.OPEN)

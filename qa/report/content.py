@@ -22,7 +22,7 @@ from django.utils import timezone
 
 from .. import units
 from ..audit import audits_for_walls, fix_steps
-from ..audit.presentation import finding_size
+from ..audit.presentation import finding_size, position_text
 from ..audit.verdicts import by_level, face_name, glossary, rollup, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
 from ..choices import FindingStatus
@@ -111,6 +111,7 @@ def report_content(job) -> dict:
                 "kind": f.get_kind_display(),
                 "face": face_name(f.wall, f.face),
                 "size": size_text(f, u),
+                "position": position_text(f, f.wall, u),
                 "trade": f.get_trade_display(),
                 "status": f.status,
                 "status_label": f.get_status_display(),

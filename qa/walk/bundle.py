@@ -22,7 +22,7 @@ from ..api.serializers import FindingSerializer
 from ..audit.fix_order import fix_steps
 from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
-from ..choices import Face, FindingStatus, GapKind, SealStatus, Trade
+from ..choices import AlongFrom, Face, FindingStatus, GapKind, HeightBand, SealStatus, Trade
 from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 
 BUNDLE_FORMAT = 1
@@ -221,6 +221,8 @@ def build_bundle(job: Job, member: Member) -> dict:
             "trades": [[v, label] for v, label in Trade.choices],
             "seal_status": [[v, label] for v, label in SealStatus.choices],
             "finding_status": [[v, label] for v, label in FindingStatus.choices],
+            "height_bands": [[v, label] for v, label in HeightBand.choices],
+            "along_from": [[v, label] for v, label in AlongFrom.choices],
         },
         "cautions": {k: {"title": c.title, "text": c.text, "basis": c.basis} for k, c in CAUTIONS.items()},
         "vocabulary": vocabulary(),
