@@ -93,6 +93,7 @@ class FieldPredictionViewSet(WallChildMixin, viewsets.GenericViewSet):
     """GET the wall's predicted field rating (ISO 12354-1): as designed, as walked and now, per room pair."""
 
     queryset = Wall.objects.none()
+    serializer_class = fs.FieldPredictionSerializer
 
     def list(self, request, *args, **kwargs):
         self.wall.job = self.job
@@ -103,6 +104,7 @@ class TestPlanViewSet(JobScopedMixin, viewsets.GenericViewSet):
     """GET the job's test plan: walls ranked by predicted field margin and by what the walk found."""
 
     queryset = Wall.objects.none()
+    serializer_class = fs.TestPlanSerializer
 
     def right_needed(self) -> str:
         return "view"

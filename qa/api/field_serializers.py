@@ -176,9 +176,38 @@ class FieldTestSerializer(serializers.ModelSerializer):
         return attrs
 
 
+class FieldPredictionSerializer(serializers.Serializer):
+    """The shape of a wall's field prediction (read-only; see :func:`qa.field.prediction.compute_field`)."""
+
+    wall = serializers.IntegerField()
+    building_kind = serializers.ChoiceField(choices=BuildingKind.choices)
+    caution = serializers.CharField()
+    error = serializers.CharField(allow_null=True)
+    pairs = serializers.ListField(
+        child=serializers.DictField(),
+        help_text="Per room pair: rooms, junctions, target and states designed/walked/now with R'w, DnT,w "
+        "(C, Ctr), ASTC, NNIC, bands, path shares and margin.",
+    )
+    tests = serializers.ListField(child=serializers.DictField())
+
+
+class TestPlanSerializer(serializers.Serializer):
+    """The shape of a job's test plan (read-only; see :func:`qa.field.plan.job_test_plan`)."""
+
+    job = serializers.IntegerField()
+    building_kind = serializers.ChoiceField(choices=BuildingKind.choices)
+    caution = serializers.CharField()
+    rows = serializers.ListField(child=serializers.DictField(), help_text="Walls in test order.")
+    by_walk = serializers.ListField(
+        child=serializers.IntegerField(), help_text="Wall ids by what the walk found."
+    )
+
+
 __all__ = [
     "BuildingKindSerializer",
+    "FieldPredictionSerializer",
     "FieldTestSerializer",
     "JunctionOverrideSerializer",
     "RoomPairSerializer",
+    "TestPlanSerializer",
 ]

@@ -16,7 +16,7 @@ class Migration(migrations.Migration):
         migrations.AddField(
             model_name='job',
             name='building_kind',
-            field=models.CharField(choices=[('concrete_masonry', 'Concrete slabs, masonry walls'), ('wood_frame', 'Wood frame'), ('steel_frame', 'Steel frame, concrete on steel deck'), ('clt', 'Cross-laminated timber')], default='wood_frame', help_text='Sets the default floors, ceilings and side walls of the field prediction.', max_length=20),
+            field=models.CharField(choices=[('concrete_masonry', 'Concrete slabs, masonry walls'), ('wood_frame', 'Wood frame'), ('steel_frame', 'Steel frame, concrete on steel deck'), ('clt', 'Cross-laminated timber')], db_default='wood_frame', default='wood_frame', help_text='Sets the default floors, ceilings and side walls of the field prediction.', max_length=20),
         ),
         migrations.CreateModel(
             name='RoomPair',

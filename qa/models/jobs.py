@@ -35,6 +35,7 @@ class Job(models.Model):
         max_length=20,
         choices=BuildingKind.choices,
         default=BuildingKind.WOOD_FRAME,
+        db_default=BuildingKind.WOOD_FRAME.value,  # rows written by other tools (imports, raw SQL) too
         help_text="Sets the default floors, ceilings and side walls of the field prediction.",
     )
     created_at = models.DateTimeField(auto_now_add=True)

@@ -84,7 +84,7 @@ def make_photo(job, wall, finding, user, purpose="defect"):
 
 
 def build_scene(world) -> Scene:
-    from qa.models import Finding, Member, Opening, SealPoint
+    from qa.models import FieldTest, Finding, JunctionOverride, Member, Opening, RoomPair, SealPoint
 
     w = world
     finding = Finding.objects.create(
@@ -120,6 +120,12 @@ def build_scene(world) -> Scene:
         ),
         "sealpoint": SealPoint.objects.filter(wall=w.other_wall).first(),
         "member": Member.objects.get(job=w.other_job, user=w.outsider),
+        # field rating (qa/api/field.py)
+        "roompair": RoomPair.objects.create(wall=w.other_wall, receiving_volume_m3=30.0),
+        "junction": JunctionOverride.objects.create(wall=w.other_wall, position="floor", kind="rigid_t"),
+        "fieldtest": FieldTest.objects.create(
+            wall=w.other_wall, tested_on="2026-11-01", tester="x", standard="ISO 16283-1"
+        ),
     }
     from qa.models import Conflict, SyncOperation
 
@@ -161,7 +167,27 @@ OBJECTS = {
     "photo": lambda s: s.photo,
     "opening": lambda s: s.opening,
     "sealpoint": lambda s: s.seal_point,
+    "roompair": lambda s: _field_object(s, "roompair"),
+    "junction": lambda s: _field_object(s, "junction"),
+    "fieldtest": lambda s: _field_object(s, "fieldtest"),
 }
+
+
+def _field_object(s, basename):
+    """A room pair, junction or field test of the scene's wall, made once when a route needs its pk."""
+    from qa.models import FieldTest, JunctionOverride, RoomPair
+
+    wall = s.world.wall
+    if basename == "roompair":
+        return RoomPair.objects.get_or_create(wall=wall, label="matrix")[0]
+    if basename == "junction":
+        return JunctionOverride.objects.get_or_create(
+            wall=wall, position="end_a", defaults={"kind": "rigid_t"}
+        )[0]
+    return FieldTest.objects.get_or_create(
+        wall=wall, tester="matrix", defaults={"tested_on": "2026-11-01", "standard": "ISO 16283-1"}
+    )[0]
+
 
 # --- request bodies ------------------------------------------------------------------------------------
 
@@ -279,6 +305,13 @@ class Rule:
     known: Any = None  # {persona: reason}: a known deviation from the design, reported with its fix (xfail)
 
 
+FIELD_TEST_BODY = {
+    "tested_on": "2026-11-20",
+    "tester": "matrix",
+    "standard": "ASTM E336",
+    "source": "report",
+    "bands": {"atl": [50.0] * 21, "nnr": [50.0] * 21},
+}
 R = Rule
 TABLE: dict[str, dict[str, Rule]] = {
     # pages
@@ -396,6 +429,34 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:report-pdf": {"GET": R("view")},
     "qa:report-csv": {"GET": R("view")},
     "qa:report-sign": {"POST": R("sign", ok=302, fmt="form")},
+    # field rating (qa/api/field.py, qa/views/field.py)
+    "qa:test-plan": {"GET": R("view")},
+    "api:field-prediction": {"GET": R("view")},
+    "api:test-plan": {"GET": R("view")},
+    "api:test-plan-csv": {"GET": R("view")},
+    "api:building-kind": {"GET": R("view"), "PUT": R("edit", body=lambda s: {"building_kind": "clt"})},
+    "api:roompair-list": {
+        "GET": R("view"),
+        "POST": R("edit", ok=201, body=lambda s: {"receiving_volume_m3": 40.0}),
+    },
+    "api:roompair-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: {"label": "A to B", "receiving_volume_m3": 40.0}),
+        "PATCH": R("edit", body=lambda s: {"receiving_t_s": 0.7}),
+        "DELETE": R("edit", ok=204),
+    },
+    "api:junction-list": {
+        "GET": R("view"),
+        "POST": R("edit", ok=201, body=lambda s: {"position": "floor", "kind": "rigid_t"}),
+    },
+    "api:junction-detail": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: {"position": "end_a", "kind": "rigid_cross"}),
+        "PATCH": R("edit", body=lambda s: {"kind": "rigid_cross"}),
+        "DELETE": R("edit", ok=204),
+    },
+    "api:fieldtest-list": {"GET": R("view"), "POST": R("edit", ok=201, body=lambda s: FIELD_TEST_BODY)},
+    "api:fieldtest-detail": {"GET": R("view"), "DELETE": R("edit", ok=204)},
 }
 #: URL names deliberately outside the matrix, with the reason.
 EXEMPT = {
