@@ -227,8 +227,11 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
         tls = _tl(cand, inv_s)
         r = rater(tls)
         pw = d @ weights
-        # highest rating, then most weighted power, then lowest id rank
-        pick = np.lexsort((id_rank[idx], -pw, -r))[0]
+        # highest rating, then most weighted power, then lowest id rank. Powers are compared to 12
+        # significant digits: two identical findings summed in another order differ in the last bits,
+        # and that noise must not decide the order (input order changes nothing).
+        pw_key = np.array([float(f"{v:.12g}") for v in pw])
+        pick = np.lexsort((id_rank[idx], -pw_key, -r))[0]
         best = int(idx[pick])
         order.append(best)
         after[step], after_tl[step] = int(r[pick]), tls[pick]

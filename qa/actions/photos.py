@@ -59,6 +59,7 @@ def store_photo(
         width=clean.width,
         height=clean.height,
         bytes=len(clean.image),
+        thumbnail_bytes=len(clean.thumbnail),
         sha256=clean.sha256,
         received_sha256=clean.received_sha256,
         original_format=clean.original_format,

@@ -9,21 +9,15 @@ import math
 from django.contrib.auth import get_user_model
 from rest_framework import serializers
 
+from .. import units
 from ..audit.curves import curve_errors, resolve_wall_type_curve
 from ..choices import Role
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField
 
-SI_TO_API = {
-    "width_m": "width",
-    "length_m": "length",
-    "diameter_m": "diameter",
-    "depth_m": "depth",
-    "area_m2": "area",
-    "count": "count",
-    "face": "face",
-}
+#: Geometry errors are reported under the API's names (width, not width_m).
+SI_TO_API = {**units.SI_TO_API, "count": "count", "face": "face"}
 
 
 class CurveField(serializers.ListField):

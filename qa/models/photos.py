@@ -38,6 +38,7 @@ class Photo(models.Model):
     width = models.PositiveIntegerField(default=0)
     height = models.PositiveIntegerField(default=0)
     bytes = models.PositiveIntegerField(default=0)
+    thumbnail_bytes = models.PositiveIntegerField(default=0)
     sha256 = models.CharField(max_length=64, help_text="Of the stored (cleaned) image.")
     received_sha256 = models.CharField(
         max_length=64, blank=True, help_text="Of the file as the device sent it."

@@ -22,17 +22,21 @@ from ..api.serializers import FindingSerializer
 from ..audit.fix_order import fix_steps
 from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
-from ..choices import AlongFrom, Face, FindingStatus, GapKind, HeightBand, SealStatus, Trade
+from ..choices import (
+    SIZE_RULES,
+    STATUS_GROUPS,
+    AlongFrom,
+    Face,
+    FindingStatus,
+    GapKind,
+    HeightBand,
+    SealStatus,
+    Trade,
+)
 from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+from .sync import conflict_data
 
 BUNDLE_FORMAT = 1
-_GAP_FIELDS = {
-    "width_m": "width",
-    "length_m": "length",
-    "diameter_m": "diameter",
-    "depth_m": "depth",
-    "area_m2": "area",
-}
 
 
 def _plain(value: Any) -> Any:
@@ -66,9 +70,9 @@ def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
         "at_edge": point.at_edge,
         "count": int(gap.get("count", 1) or 1),
     }
-    for si, name in _GAP_FIELDS.items():
+    for si, name in units.SI_TO_API.items():
         if gap.get(si) is not None:
-            out[name] = round(units.from_si(gap[si], units.FIELD_QUANTITY[si], job_units), 4)
+            out[name] = units.in_job_units(gap[si], units.FIELD_QUANTITY[si], job_units)
     if point.gap_kind == GapKind.BRIDGE:
         out["face"] = Face.THROUGH
     return out
@@ -183,7 +187,16 @@ def build_bundle(job: Job, member: Member) -> dict:
     if member.is_crew:
         findings = findings.filter(trade=member.trade)
     photos = Photo.objects.filter(job=job, removed=False).only(
-        "id", "wall_id", "finding_id", "purpose", "width", "height", "bytes", "sha256", "captured_at"
+        "id",
+        "wall_id",
+        "finding_id",
+        "purpose",
+        "width",
+        "height",
+        "bytes",
+        "thumbnail_bytes",
+        "sha256",
+        "captured_at",
     )
     if member.is_crew:
         photos = photos.filter(finding__trade=member.trade)
@@ -198,7 +211,8 @@ def build_bundle(job: Job, member: Member) -> dict:
             "units": u,
             "rating_scheme": job.rating_scheme,
             "rule_set": job.rule_set,
-            "symbols": {q: units.symbol(q, u) for q in ("size", "gap", "area")},
+            "symbols": {q: units.symbol(q, u) for q in units.FACTORS[u]},
+            "unit_factors": units.table(u),
         },
         "me": {
             "username": member.user.username,
@@ -224,6 +238,9 @@ def build_bundle(job: Job, member: Member) -> dict:
             "height_bands": [[v, label] for v, label in HeightBand.choices],
             "along_from": [[v, label] for v, label in AlongFrom.choices],
         },
+        # The rules the walk's forms apply, from their one source (the server's own checks read them too).
+        "size_rules": {kind: {k: list(v) for k, v in rule.items()} for kind, rule in SIZE_RULES.items()},
+        "status_groups": {name: list(group) for name, group in STATUS_GROUPS.items()},
         "cautions": {k: {"title": c.title, "text": c.text, "basis": c.basis} for k, c in CAUTIONS.items()},
         "vocabulary": vocabulary(),
         "verdicts": verdicts,
@@ -238,7 +255,7 @@ def build_bundle(job: Job, member: Member) -> dict:
                 "design_rating": t.design_rating,
                 "rating_scheme": t.rating_scheme,
                 "fire_rated": t.fire_rated,
-                "thickness": round(units.from_si(t.thickness_m, "gap", u), 3),
+                "thickness": units.in_job_units(t.thickness_m, "gap", u),
             }
             for t in WallType.objects.filter(job=job)
         ],
@@ -251,8 +268,8 @@ def build_bundle(job: Job, member: Member) -> dict:
                 "wall_type": w.wall_type_id,
                 "face_a_label": w.face_a_label,
                 "face_b_label": w.face_b_label,
-                "length": round(units.from_si(w.length_m, "size", u), 3),
-                "height": round(units.from_si(w.height_m, "size", u), 3),
+                "length": units.in_job_units(w.length_m, "size", u),
+                "height": units.in_job_units(w.height_m, "size", u),
                 "target_rating": w.target_rating,
                 "rating_scheme": w.rating_scheme,
                 "version": w.version,
@@ -267,8 +284,8 @@ def build_bundle(job: Job, member: Member) -> dict:
                 "wall": o.wall_id,
                 "kind": o.kind,
                 "label": o.label,
-                "width": round(units.from_si(o.width_m, "size", u), 3),
-                "height": round(units.from_si(o.height_m, "size", u), 3),
+                "width": units.in_job_units(o.width_m, "size", u),
+                "height": units.in_job_units(o.height_m, "size", u),
                 "rating": o.rating,
                 "fire_rated": o.fire_rated,
             }
@@ -302,8 +319,12 @@ def build_bundle(job: Job, member: Member) -> dict:
                 "height": p.height,
                 "bytes": p.bytes,
                 "sha256": p.sha256,
+                "thumb_bytes": p.thumbnail_bytes,
                 "thumbnail_url": reverse(
                     "qa:photo-file", kwargs={"job_pk": job.id, "photo_id": p.id, "kind": "thumb"}
+                ),
+                "image_url": reverse(
+                    "qa:photo-file", kwargs={"job_pk": job.id, "photo_id": p.id, "kind": "image"}
                 ),
             }
             for p in photos
@@ -311,8 +332,6 @@ def build_bundle(job: Job, member: Member) -> dict:
         "conflicts": [],
     }
     if member.is_inspector:
-        from .sync import conflict_data
-
         open_conflicts = Conflict.objects.filter(finding__job=job, resolution="").select_related(
             "finding", "created_by"
         )

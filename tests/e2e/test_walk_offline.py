@@ -175,10 +175,11 @@ def test_walk_offline_reload_new_context_then_sync_once(live_server, browser, wo
     )
     assert Finding.objects.count() == 5
     assert Photo.objects.count() == 2
-    assert sorted(Photo.objects.values_list("sha256", flat=True)) == hashes
+    # The server received exactly the phone's bytes; it stores a re-encoded copy with no metadata.
+    assert sorted(Photo.objects.values_list("received_sha256", flat=True)) == hashes
     for p in Photo.objects.all():
         assert max(p.width, p.height) <= 2560
-        assert hashlib.sha256(p.image.open("rb").read()).hexdigest() == p.sha256 == p.received_sha256
+        assert hashlib.sha256(p.image.open("rb").read()).hexdigest() == p.sha256
     assert SealPoint.objects.filter(status="na").count() == 1
     assert SealPoint.objects.filter(status="pass").count() == 1
     assert SealPoint.objects.filter(status="defect").count() == 5

@@ -16,7 +16,6 @@ const titleEl = document.querySelector("[data-title]");
 const backEl = document.querySelector("[data-back]");
 const dockEl = document.querySelector("[data-dock]");
 const ui = { level: null, search: "" };
-let lastRoute = "";
 let current = null;
 
 function parse(hash) {
@@ -113,10 +112,7 @@ store.onChange(() => {
   });
 });
 
-window.addEventListener("hashchange", () => {
-  lastRoute = location.hash;
-  render(true);
-});
+window.addEventListener("hashchange", () => render(true));
 window.addEventListener("online", () => render(false));
 window.addEventListener("offline", () => render(false));
 
@@ -158,7 +154,6 @@ if (window.ResizeObserver) {
 }
 
 sync.start();
-lastRoute = location.hash;
 render(true).then(() => {
   if (current && current.job) sync.syncNow(current.job);
 });

@@ -78,3 +78,42 @@ def test_access(world, api):
     assert api().get(url(world.job)).status_code in (401, 403)
     assert api(world.owner).get(url(world.job)).status_code == 200
     assert api(world.inspector).delete(url(world.job)).status_code == 405
+
+
+def test_bundle_carries_the_rules_the_walk_forms_apply_from_their_one_source(world, api):
+    from qa.choices import SIZE_RULES, STATUS_GROUPS
+
+    body = api(world.inspector).get(url(world.job)).data
+    assert body["size_rules"] == {k: {n: list(v) for n, v in r.items()} for k, r in SIZE_RULES.items()}
+    assert body["status_groups"] == {k: list(v) for k, v in STATUS_GROUPS.items()}
+    assert body["job"]["symbols"]["small_area"] == "cm²"
+    assert body["job"]["unit_factors"]["small_area"] == {"factor": 1e-4, "symbol": "cm²"}
+    assert [v for v, _ in body["choices"]["height_bands"]] == ["low", "middle", "high"]
+
+
+def test_prefilled_sizes_keep_their_precision(world, api):
+    """A back-box leak of 6 cm² is 0.0006 m²: rounding to 4 decimals of m² would make it 0.0006 or 0.0005
+    at random; six significant digits keep it exact (common practice for display, no source)."""
+    point = world.wall.seal_points.order_by("position").first()
+    point.gap_kind, point.gap = "back_to_back", {"area_m2": 0.000645}
+    point.save()
+    body = api(world.inspector).get(url(world.job)).data
+    row = next(p for p in body["seal_points"] if p["id"] == point.id)
+    assert row["prefill"]["area"] == 0.000645
+
+
+def test_photos_come_with_their_full_image_address_and_thumbnail_size(world, api):
+    import io
+
+    from PIL import Image
+
+    from qa import actions
+    from qa.models import Member
+
+    out = io.BytesIO()
+    Image.effect_noise((400, 300), 50).convert("RGB").save(out, "JPEG")
+    actor = actions.Actor(Member.objects.get(job=world.job, user=world.inspector))
+    photo = actions.store_photo(actor, out.getvalue(), wall=world.wall)
+    row = api(world.inspector).get(url(world.job)).data["photos"][0]
+    assert row["image_url"].endswith(f"/photos/{photo.id}/image")
+    assert row["thumb_bytes"] == photo.thumbnail.size > 0

@@ -1,4 +1,5 @@
 // One finding: its details and photos, and the steps the user's role allows (fix, verify, reopen, edit, remove).
+import { statusGroup } from "../rules.js";
 import { h, replace, uuid } from "../dom.js";
 import { addPhoto, enqueue, localPhotos } from "../store.js";
 import { prepare } from "../photos.js";
@@ -26,7 +27,7 @@ export async function findingView(root, ctx) {
   const point = state.points.get(f.seal_point);
   const me = state.me;
   const inspector = me.role === "inspector";
-  const canFix = (inspector || (me.role === "crew" && me.trade === f.trade)) && ["open", "reopened"].includes(f.status);
+  const canFix = (inspector || (me.role === "crew" && me.trade === f.trade)) && statusGroup(state.bundle, "open").includes(f.status);
   ctx.setTitle(kindLabel(state, f.kind));
   ctx.back(`#/j/${route.job}/w/${f.wall}`, `wall ${wall.tag}`);
 

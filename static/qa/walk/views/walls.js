@@ -1,5 +1,6 @@
 // Walls of a job: pick a level, search by tag or unit, open a wall.
 import { h, replace } from "../dom.js";
+import { statusGroup } from "../rules.js";
 import { findingsOf, pointsOf } from "../store.js";
 
 export async function wallsView(root, ctx) {
@@ -7,6 +8,7 @@ export async function wallsView(root, ctx) {
   ctx.setTitle(state.job.name);
   ctx.back("#/", "your jobs");
   const crew = state.me.role === "crew";
+  const openStatuses = statusGroup(state.bundle, "open");
   const levels = [...new Set(state.walls.map((w) => w.level))].sort((a, b) => a.localeCompare(b, undefined, { numeric: true }));
   if (ui.level && !levels.includes(ui.level)) ui.level = null;
   const q = ui.search.trim().toLowerCase();
@@ -16,7 +18,7 @@ export async function wallsView(root, ctx) {
   for (const w of walls) {
     const points = pointsOf(state, w.id);
     const findings = findingsOf(state, w.id);
-    const open = findings.filter((f) => f.status === "open" || f.status === "reopened").length;
+    const open = findings.filter((f) => openStatuses.includes(f.status)).length;
     if (crew && !findings.length) continue;
     const checked = points.filter((p) => p.status !== "unchecked").length;
     const local = findings.some((f) => f.local) || points.some((p) => p.pending);
