@@ -62,6 +62,7 @@ def test_c20_one_face_hole_costs_nothing_through_hole_costs_a_lot():
 
 def test_one_face_is_clearly_cheaper_in_an_audit():
     from acoustics import leak_audit as audit
+
     tl = predict(C20).tl
     one, thr = one_face_gap(C20, 1, hole(0.05, 0.0159)), hole(0.05, 0.1208)
     res = audit.audit(tl, 10.0, [one, thr], rating="stc")
