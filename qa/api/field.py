@@ -38,7 +38,9 @@ class _Recorded:
 
     @transaction.atomic
     def perform_destroy(self, obj):
-        self.record(f"{self.noun}.removed", obj, {"wall": self.wall.tag})
+        # Rooms and junctions are inputs, not findings: the event keeps what they were.
+        data = self.get_serializer(obj).data
+        self.record(f"{self.noun}.removed", obj, {"wall": self.wall.tag, "was": dict(data)})
         obj.delete()
 
 
@@ -81,12 +83,18 @@ class FieldTestViewSet(
     noun = "field_test"
 
     def get_queryset(self):
-        return FieldTest.objects.filter(wall=self.wall).order_by("-tested_on", "-id")
+        return FieldTest.objects.filter(wall=self.wall, removed=False).order_by("-tested_on", "-id")
 
     @transaction.atomic
     def perform_create(self, serializer):
         obj = serializer.save(wall=self.wall, created_by=self.request.user)
         self.record("field_test.created", obj, {"wall": self.wall.tag, "standard": obj.standard})
+
+    @transaction.atomic
+    def perform_destroy(self, obj):
+        obj.removed = True
+        obj.save(update_fields=["removed"])
+        self.record("field_test.removed", obj, {"wall": self.wall.tag})
 
 
 class FieldPredictionViewSet(WallChildMixin, viewsets.GenericViewSet):

@@ -205,7 +205,7 @@ def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
         for o in JunctionOverride.objects.filter(wall_id__in=ids).order_by("position"):
             overrides[o.wall_id].append(o)
         tests: dict[int, list] = {i: [] for i in ids}
-        for t in FieldTest.objects.filter(wall_id__in=ids).order_by("-tested_on", "-id"):
+        for t in FieldTest.objects.filter(wall_id__in=ids, removed=False).order_by("-tested_on", "-id"):
             tests[t.wall_id].append(entry_of_test(t))
         audits = audits_for_walls(cold)
         fresh = {}

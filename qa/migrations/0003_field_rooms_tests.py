@@ -51,6 +51,7 @@ class Migration(migrations.Migration):
                 ('bands', models.JSONField(default=dict)),
                 ('results', models.JSONField(blank=True, default=dict)),
                 ('note', models.CharField(blank=True, max_length=300)),
+                ('removed', models.BooleanField(db_default=False, default=False, help_text='Removal is an event, not a delete.')),
                 ('created_at', models.DateTimeField(auto_now_add=True)),
                 ('created_by', models.ForeignKey(blank=True, null=True, on_delete=django.db.models.deletion.SET_NULL, related_name='+', to=settings.AUTH_USER_MODEL)),
                 ('wall', models.ForeignKey(on_delete=django.db.models.deletion.CASCADE, related_name='field_tests', to='qa.wall')),

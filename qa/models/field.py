@@ -75,7 +75,8 @@ class FieldTest(models.Model):
 
     ``bands`` holds {"l1", "l2", "b2", "t2"} (``source == "levels"``) or any of {"r_prime", "dnt",
     "atl", "nnr"} (``source == "report"``); ``results`` caches the engine's descriptors
-    (:func:`qa.field.tests_data.compute_results`), written with the bands in one save.
+    (:func:`qa.field.measurements.compute_results`), written with the bands in one save. A test is
+    never deleted by a user: removal sets ``removed`` and is recorded as an event.
     """
 
     SOURCES = [("levels", "Measured levels"), ("report", "Band results of a test report")]
@@ -93,6 +94,9 @@ class FieldTest(models.Model):
     bands = models.JSONField(default=dict)
     results = models.JSONField(default=dict, blank=True)
     note = models.CharField(max_length=300, blank=True)
+    removed = models.BooleanField(
+        default=False, db_default=False, help_text="Removal is an event, not a delete."
+    )
     created_by = models.ForeignKey(
         settings.AUTH_USER_MODEL, on_delete=models.SET_NULL, null=True, blank=True, related_name="+"
     )

@@ -230,3 +230,16 @@ def test_who_sees_and_who_adds_field_tests(world, api, role):
     r = client.post(url(world.job, world.wall), body(), format="json")
     assert r.status_code == (EDIT[role] or 201)
     assert FieldTest.objects.count() == (1 if role == "inspector" else 0)
+
+
+def test_removing_a_test_keeps_it_in_the_record(world, api):
+    client = api(world.inspector)
+    pk = client.post(url(world.job, world.wall), body(), format="json").json()["id"]
+    pred = f"/api/jobs/{world.job.id}/walls/{world.wall.id}/field-prediction/"
+    assert [t["id"] for t in client.get(pred).json()["tests"]] == [pk]
+    assert client.delete(url(world.job, world.wall, pk)).status_code == 204
+    test = FieldTest.objects.get(pk=pk)
+    test.refresh_from_db()
+    assert test.removed and client.get(url(world.job, world.wall, pk)).status_code == 404
+    assert client.get(pred).json()["tests"] == []  # the cached prediction followed the removal
+    assert Event.objects.filter(verb="field_test.removed", target_id=str(pk)).count() == 1
