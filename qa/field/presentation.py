@@ -7,9 +7,10 @@ transmission loss (R' = ATL) now and as designed, and each test's measured R' or
 from __future__ import annotations
 
 import math
+from html import escape
 from typing import Any
 
-from django.utils.safestring import SafeString
+from django.utils.safestring import SafeString, mark_safe
 
 from ..audit import chart as ch
 from .choices import BuildingKind, JunctionPosition
@@ -149,3 +150,57 @@ def wall_field_context(wall, job) -> dict[str, Any]:
         }
     )
     return ctx
+
+
+def scatter_svg(points: list[dict], far_db: int) -> SafeString:
+    """Inline SVG: measured against predicted, one dot a test, with the line of agreement and ±far_db.
+
+    Presentation attributes only (the content security policy forbids style attributes).
+    """
+    pts = [p for p in points if p.get("predicted") is not None and p.get("measured") is not None]
+    if not pts:
+        return mark_safe("")
+    vals = [v for p in pts for v in (p["predicted"], p["measured"])]
+    lo, hi = 5 * math.floor((min(vals) - far_db) / 5), 5 * math.ceil((max(vals) + far_db) / 5)
+    size, pad = 260.0, 36.0
+
+    def xy(pred: float, meas: float) -> tuple[float, float]:
+        k = (size - 2 * pad) / (hi - lo)
+        return round(pad + (pred - lo) * k, 1), round(size - pad - (meas - lo) * k, 1)
+
+    out = [
+        f'<svg class="scatter" viewBox="0 0 {size:g} {size:g}" role="img" aria-labelledby="sc-title" '
+        'xmlns="http://www.w3.org/2000/svg" font-family="system-ui, sans-serif" font-size="11">',
+        '<title id="sc-title">Measured against predicted, dB; dots below the line fell short</title>',
+    ]
+    (x0, y0), (x1, y1) = xy(lo, lo), xy(hi, hi)
+    out.append(
+        f'<rect x="{pad}" y="{pad}" width="{size - 2 * pad}" height="{size - 2 * pad}" '
+        'fill="#fff" stroke="#8a948f"/>'
+    )
+    out.append(f'<line x1="{x0}" y1="{y0}" x2="{x1}" y2="{y1}" stroke="#1f3a3d" stroke-width="1.5"/>')
+    for d in (far_db, -far_db):
+        (a0, b0), (a1, b1) = xy(lo, lo + d), xy(hi, hi + d)
+        out.append(f'<line x1="{a0}" y1="{b0}" x2="{a1}" y2="{b1}" stroke="#8a948f" stroke-dasharray="4 3"/>')
+    for t in range(int(lo), int(hi) + 1, 5):
+        x, _ = xy(t, lo)
+        _, y = xy(lo, t)
+        out.append(f'<text x="{x}" y="{size - pad + 14}" text-anchor="middle" fill="#14211f">{t}</text>')
+        out.append(f'<text x="{pad - 4}" y="{y + 4}" text-anchor="end" fill="#14211f">{t}</text>')
+    out.append(
+        f'<text x="{size / 2}" y="{size - 4}" text-anchor="middle" fill="#14211f">predicted now</text>'
+    )
+    out.append(
+        f'<text x="10" y="{size / 2}" text-anchor="middle" fill="#14211f" '
+        f'transform="rotate(-90 10 {size / 2})">measured</text>'
+    )
+    for p in pts:
+        x, y = xy(p["predicted"], p["measured"])
+        short = p["measured"] - p["predicted"] <= -far_db
+        label = escape(f"{p['wall']}: {p['name']} measured {p['measured']}, predicted {p['predicted']}")
+        out.append(
+            f'<circle cx="{x}" cy="{y}" r="5" fill="{"#b3261e" if short else "#0b6e69"}" '
+            f'data-test="{int(p["test"])}"><title>{label}</title></circle>'
+        )
+    out.append("</svg>")
+    return mark_safe("".join(out))

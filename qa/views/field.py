@@ -9,6 +9,7 @@ from django.views.decorators.http import require_safe
 from ..access import job_for
 from ..field.choices import BuildingKind
 from ..field.plan import job_test_plan, measured_summary
+from ..field.presentation import scatter_svg
 
 
 @require_safe
@@ -17,6 +18,7 @@ def field_test_plan_page(request, job_pk):
     """Walls ranked by predicted field margin, then by what the walk found; every member may read it."""
     job, member = job_for(request.user, job_pk)
     plan = job_test_plan(job)
+    tested = measured_summary(job)
     return render(
         request,
         "qa/field/test_plan.html",
@@ -25,7 +27,8 @@ def field_test_plan_page(request, job_pk):
             "member": member,
             "plan": plan,
             "rows": plan["rows"],
-            "tested": measured_summary(job),
+            "tested": tested,
+            "scatter": scatter_svg(tested["points"], tested["far_db"]),
             "building_kind": BuildingKind(job.building_kind).label,
         },
     )

@@ -66,6 +66,7 @@ def test_test_plan_page_for_every_member_and_404_for_outsiders(world):
         html = r.content.decode()
         assert "data-test-plan" in html and world.wall.tag in html and "Download CSV" in html
         assert "data-far-below" in html  # ASTC 38 measured against a prediction in the mid 40s
+        assert "data-scatter" in html and "<circle" in html and 'fill="#b3261e"' in html  # the short dot
     assert client_for(world.outsider).get(f"/jobs/{world.job.id}/test-plan/").status_code == 404
     assert client_for().get(f"/jobs/{world.job.id}/test-plan/").status_code == 302
     assert client_for(world.inspector).post(f"/jobs/{world.job.id}/test-plan/").status_code == 405
