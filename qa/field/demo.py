@@ -1,4 +1,5 @@
-"""The demo job's field rating: rooms for its walls and two invented field tests (fictional testers).
+"""The demo job's field rating: rooms for its walls, the lift-shaft walls' junctions and two invented
+field tests (fictional testers).
 
 One test passes (measured a little above its prediction); one falls short of its prediction (a
 flanking or workmanship problem the walk could not see). Idempotent: running it again changes nothing.
@@ -10,7 +11,7 @@ from datetime import date
 
 from django.db import transaction
 
-from ..models import FieldTest, RoomPair, Wall
+from ..models import FieldTest, JunctionOverride, RoomPair, Wall
 from .measurements import compute_results
 from .prediction import field_prediction, headline
 
@@ -62,6 +63,12 @@ def load_field_demo(job) -> None:
     walls = {w.tag: w for w in Wall.objects.live().filter(job=job).select_related("wall_type")}
     for wall in walls.values():
         _rooms(wall)
+        if "-L" in wall.tag:
+            # The shaft's own block walls meet this one at both ends: a consultant's entry, not a default.
+            for end in ("end_a", "end_b"):
+                JunctionOverride.objects.get_or_create(
+                    wall=wall, position=end, defaults={"kind": "rigid_t", "element_from": "concrete_masonry"}
+                )
     if FieldTest.objects.filter(wall__job=job, tester=TESTER).exists():
         return
     for wall in walls.values():

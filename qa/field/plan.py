@@ -68,12 +68,20 @@ def _row(wall, result: dict, audit: dict, counts: dict, tested: set) -> dict[str
     }
 
 
-def job_test_plan(job) -> dict[str, Any]:
-    """The job's walls ranked for field testing, JSON-ready: ``rows`` in test order, ``by_walk``."""
+def job_walls(job) -> tuple[list, dict[int, dict]]:
+    """The job's live walls (wall types loaded) and their cached field predictions."""
+    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
+    return walls, field_for_walls(walls, job.building_kind)
+
+
+def job_test_plan(job, walls_fields: tuple[list, dict] | None = None) -> dict[str, Any]:
+    """The job's walls ranked for field testing, JSON-ready: ``rows`` in test order, ``by_walk``.
+
+    ``walls_fields`` is :func:`job_walls`'s answer when the caller already has it.
+    """
     from ..audit import audits_for_walls
 
-    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
-    fields = field_for_walls(walls, job.building_kind)
+    walls, fields = walls_fields or job_walls(job)
     audits = audits_for_walls(walls)
     counts = dict(
         Finding.objects.live()
@@ -131,7 +139,7 @@ LOOK_FOR = {
 }
 
 
-def measured_summary(job) -> dict[str, Any]:
+def measured_summary(job, walls_fields: tuple[list, dict] | None = None) -> dict[str, Any]:
     """Over the job's field tests: measured minus predicted now (mean, spread) and walls far below.
 
     Each test is compared in the descriptor of its wall's field target (ASTC when none), against the
@@ -139,8 +147,7 @@ def measured_summary(job) -> dict[str, Any]:
     """
     from .presentation import compare, pair_for
 
-    walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
-    fields = field_for_walls(walls, job.building_kind)
+    walls, fields = walls_fields or job_walls(job)
     points, far = [], []
     for w in walls:
         for t in fields[w.pk].get("tests", []):

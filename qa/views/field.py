@@ -8,7 +8,7 @@ from django.views.decorators.http import require_safe
 
 from ..access import job_for
 from ..field.choices import BuildingKind
-from ..field.plan import job_test_plan, measured_summary
+from ..field.plan import job_test_plan, job_walls, measured_summary
 from ..field.presentation import scatter_svg
 
 
@@ -17,8 +17,9 @@ from ..field.presentation import scatter_svg
 def field_test_plan_page(request, job_pk):
     """Walls ranked by predicted field margin, then by what the walk found; every member may read it."""
     job, member = job_for(request.user, job_pk)
-    plan = job_test_plan(job)
-    tested = measured_summary(job)
+    walls_fields = job_walls(job)
+    plan = job_test_plan(job, walls_fields)
+    tested = measured_summary(job, walls_fields)
     return render(
         request,
         "qa/field/test_plan.html",

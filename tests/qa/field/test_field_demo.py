@@ -10,7 +10,7 @@ from qa.field.demo import TESTER
 from qa.field.plan import measured_summary
 from qa.field.prediction import entry_of_test, field_prediction
 from qa.field.presentation import compare, pair_for
-from qa.models import FieldTest, RoomPair, Wall
+from qa.models import FieldTest, JunctionOverride, RoomPair, Wall
 
 pytestmark = pytest.mark.django_db
 
@@ -20,11 +20,14 @@ def test_demo_rooms_and_two_field_tests_once():
     assert created
     walls = Wall.objects.live().filter(job=job)
     assert RoomPair.objects.filter(wall__job=job).count() == walls.count()
+    shafts = walls.filter(tag__contains="-L")
+    assert JunctionOverride.objects.filter(wall__in=shafts, kind="rigid_t").count() == 2 * shafts.count() > 0
     tests = {t.wall.level: t for t in FieldTest.objects.filter(wall__job=job, tester=TESTER)}
     assert set(tests) == {"2", "3"}
-    before = (RoomPair.objects.count(), FieldTest.objects.count())
+    before = (RoomPair.objects.count(), JunctionOverride.objects.count(), FieldTest.objects.count())
     _, again = load_demo(photos=False)
-    assert not again and (RoomPair.objects.count(), FieldTest.objects.count()) == before
+    assert not again
+    assert (RoomPair.objects.count(), JunctionOverride.objects.count(), FieldTest.objects.count()) == before
 
     good, short = tests["2"], tests["3"]
     for t, lower, upper in ((good, 0, 2), (short, -7, -5)):
