@@ -45,6 +45,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass, field, replace
+from typing import Any
 
 from qa.choices import Construction, Face, GapKind, Trade
 
@@ -273,7 +274,7 @@ def _light_frame(board: float, depth: float, stud: float, insulation: str = "") 
     ]
 
 
-def _swap(points: list[SealPointTemplate], key: str, **changes: object) -> None:
+def _swap(points: list[SealPointTemplate], key: str, **changes: Any) -> None:
     """Replace the point ``key`` in place with a copy carrying ``changes``."""
     i = next(i for i, p in enumerate(points) if p.key == key)
     points[i] = replace(points[i], **changes)
@@ -528,9 +529,11 @@ def channel_face(layers: dict | None) -> str | None:
     ``layers["connection"]["resilient_channel"]["leaf"]`` is the leaf index (0 = face A, 1 = face B)
     in the engine's assembly format (:class:`acoustics.Assembly`).
     """
+    if layers is None:
+        return None
     try:
         leaf = layers["connection"]["resilient_channel"]["leaf"]
-    except (KeyError, TypeError):
+    except (KeyError, TypeError):  # a missing level, or a level that is not a mapping
         return None
     return {0: A, 1: B}.get(leaf)
 

@@ -22,6 +22,7 @@ from __future__ import annotations
 import os
 import sys
 from pathlib import Path
+from typing import Any
 from urllib.parse import unquote, urlparse
 
 from django.core.exceptions import ImproperlyConfigured
@@ -102,7 +103,7 @@ DATABASES = {
 # takes the write lock at the start, where the timeout does apply: writers queue for up to ``timeout``
 # seconds instead of failing. WAL lets readers go on while one connection writes.
 SQLITE_OPTIONS = {"timeout": 20, "transaction_mode": "IMMEDIATE", "init_command": "PRAGMA journal_mode=WAL;"}
-if DATABASES["default"]["ENGINE"].endswith("sqlite3"):
+if str(DATABASES["default"]["ENGINE"]).endswith("sqlite3"):
     DATABASES["default"]["OPTIONS"] = dict(SQLITE_OPTIONS)
 
 INSTALLED_APPS = [
@@ -185,6 +186,7 @@ MEDIA_ROOT = DATA_DIR / "media"
 MEDIA_URL = "/media-is-not-served/"
 
 MEDIA_STORAGE = os.environ.get("MEDIA_STORAGE", "local")
+_media_backend: dict[str, Any]
 if MEDIA_STORAGE == "local":
     _media_backend = {"BACKEND": "django.core.files.storage.FileSystemStorage"}
 elif MEDIA_STORAGE == "s3":

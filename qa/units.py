@@ -8,16 +8,18 @@ the walk receives them in its bundle.
 
 from __future__ import annotations
 
+from typing import overload
+
 from .choices import Units
 
 FOOT = 0.3048  # m, exact (international foot, 1959)
 INCH = 0.0254  # m, exact
 
-FACTORS = {
+FACTORS: dict[str, dict[str, float]] = {
     Units.METRIC: {"size": 1.0, "gap": 1e-3, "area": 1.0, "small_area": 1e-4},
     Units.IMPERIAL: {"size": FOOT, "gap": INCH, "area": FOOT**2, "small_area": INCH**2},
 }
-SYMBOLS = {
+SYMBOLS: dict[str, dict[str, str]] = {
     Units.METRIC: {"size": "m", "gap": "mm", "area": "m²", "small_area": "cm²"},
     Units.IMPERIAL: {"size": "ft", "gap": "in", "area": "ft²", "small_area": "in²"},
 }
@@ -59,6 +61,13 @@ def to_si(value: float, quantity: str, units: str) -> float:
     return value * FACTORS[units][quantity]
 
 
+# A value in gives a value out; only None gives None (so callers holding a float need no None check).
+@overload
+def from_si(value: float, quantity: str, units: str) -> float: ...
+@overload
+def from_si(value: None, quantity: str, units: str) -> None: ...
+@overload
+def from_si(value: float | None, quantity: str, units: str) -> float | None: ...
 def from_si(value: float | None, quantity: str, units: str) -> float | None:
     if value is None:
         return None
