@@ -25,10 +25,18 @@ from __future__ import annotations
 
 import hashlib
 import unicodedata
+from typing import TYPE_CHECKING
 
 from django.conf import settings
 from django.core.cache import cache
 from django.http import HttpRequest, HttpResponse
+
+if TYPE_CHECKING:
+    # For the type checker only: the mixin's ``super()`` and ``self`` are a LoginView's. At run time the
+    # base stays ``object`` so the mixin can sit before LoginView in a class's bases.
+    from django.contrib.auth.views import LoginView as _LoginViewBase
+else:
+    _LoginViewBase = object
 
 DEFAULT_LIMIT = 5
 DEFAULT_WINDOW_S = 15 * 60
@@ -105,7 +113,7 @@ def lockout_message() -> str:
     )
 
 
-class LoginThrottleMixin:
+class LoginThrottleMixin(_LoginViewBase):
     """Mix into ``django.contrib.auth.views.LoginView`` before it: counts failures, refuses when locked.
 
     A locked-out attempt answers 429 with a ``Retry-After`` header and the sign-in form showing

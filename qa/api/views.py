@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from contextlib import contextmanager
+from typing import TYPE_CHECKING
 
 from django.db import IntegrityError, transaction
 from django.db.models import Count, Prefetch, Q
@@ -22,8 +23,15 @@ from .filters import apply_filters
 
 READ_ACTIONS = {"list", "retrieve", "metadata"}
 
+if TYPE_CHECKING:
+    # For the type checker only: the mixin always sits before a GenericViewSet, whose ``action``,
+    # ``request`` and ``super()`` it uses. At run time the base stays ``object`` (a plain mixin).
+    _JobScopedBase = viewsets.GenericViewSet
+else:
+    _JobScopedBase = object
 
-class JobScopedMixin:
+
+class JobScopedMixin(_JobScopedBase):
     """Resolve ``job_pk`` for every request: a non-member gets 404, a member without the right 403."""
 
     lookup_value_regex = ID_REGEX
