@@ -35,6 +35,7 @@ from collections.abc import Iterator
 from contextlib import contextmanager
 from dataclasses import dataclass, field
 from pathlib import Path
+from typing import TypeVar
 
 from django.apps import apps
 from django.contrib.auth import get_user_model
@@ -75,6 +76,9 @@ class ImportResult:
     files: int = 0
 
 
+_M = TypeVar("_M", bound=models.Model)
+
+
 # --- which models, in which order ----------------------------------------------------------------
 
 
@@ -86,7 +90,7 @@ def _job_path(model) -> str | None:
     seen = {model}
     frontier: list[tuple[type[models.Model], str]] = [(model, "")]
     while frontier:
-        nxt = []
+        nxt: list[tuple[type[models.Model], str]] = []
         for current, prefix in frontier:
             fks = sorted(
                 (f for f in current._meta.concrete_fields if f.many_to_one or f.one_to_one),
@@ -94,6 +98,7 @@ def _job_path(model) -> str | None:
             )  # the direct job link wins
             for fk in fks:
                 target = fk.related_model
+                assert target is not None  # a concrete foreign key always has its target model
                 if target is Job:
                     return f"{prefix}{fk.name}_id" if not prefix else f"{prefix}{fk.name}"
                 if target._meta.app_label == "qa" and target not in seen:
@@ -138,6 +143,7 @@ def job_models() -> list[type[models.Model]]:
 
 def _rows(model, job) -> models.QuerySet:
     path = _job_path(model)
+    assert path is not None  # only models from job_models() come here, and it refuses one without a path
     manager = model._base_manager
     key = "pk" if path == "pk" else path
     return manager.filter(**{key: job.pk}).order_by("pk")
@@ -146,7 +152,7 @@ def _rows(model, job) -> models.QuerySet:
 # --- values <-> JSON ----------------------------------------------------------------------------
 
 
-def _encode(f: models.Field, value):
+def _encode(f: models.Field | models.ForeignObjectRel, value):
     if value is None:
         return None
     if isinstance(f, models.FileField):
@@ -205,7 +211,7 @@ def job_data(job, *, passwords: bool = True) -> dict:
 
 
 def _media_names(data: dict) -> list[str]:
-    names = []
+    names: list[str] = []
     for label, rows in data["models"].items():
         model = apps.get_model(label)
         file_fields = [f.attname for f in model._meta.concrete_fields if isinstance(f, models.FileField)]
@@ -380,7 +386,7 @@ def _stored_timestamps(models_: list) -> Iterator[None]:
             f.auto_now, f.auto_now_add = now, now_add
 
 
-def _build(model, row: dict) -> models.Model:
+def _build(model: type[_M], row: dict) -> _M:
     fields = {f.attname: f for f in model._meta.concrete_fields}
     unknown = sorted(set(row) - set(fields))
     if unknown:
