@@ -65,7 +65,8 @@ class UnitField(FiniteFloatField):
             self.fail("above", bound=units.fmt(self.max_si, self.quantity, self._units(), digits=3))
         return value
 
-    def to_representation(self, value) -> float | None:
+    # The stubs give FloatField a str representation; DRF's FloatField (and this field) return a number.
+    def to_representation(self, value) -> float | None:  # type: ignore[override]
         if value is None:
             return None
         return round(units.from_si(value, self.quantity, self._units()), 6)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import copy
 import json
 import math
+from typing import TYPE_CHECKING, Any, cast
 
 from django.contrib.auth import get_user_model
 from rest_framework import serializers
@@ -15,6 +16,9 @@ from ..choices import Role
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField
+
+if TYPE_CHECKING:
+    from django.contrib.auth.models import User  # the project keeps Django's user model
 
 #: Geometry errors are reported under the API's names (width, not width_m).
 SI_TO_API = {**units.SI_TO_API, "count": "count", "face": "face"}
@@ -222,7 +226,9 @@ class WallSerializer(serializers.ModelSerializer):
         """
         from ..audit.verdicts import verdicts_for_walls
 
-        memo = self.context.setdefault("_verdicts", {})
+        # The stubs type ``context`` as a read-only Mapping; DRF hands every field the root's one dict,
+        # which is what lets a list answer share this memo between its rows.
+        memo = cast(dict[str, Any], self.context).setdefault("_verdicts", {})
         if wall.pk not in memo:
             many = getattr(self.parent, "instance", None)
             walls = list(many) if many is not None and self.parent is not None else [wall]
@@ -311,7 +317,9 @@ class FindingSerializer(serializers.ModelSerializer):
     count = serializers.IntegerField(min_value=1, max_value=500, required=False)
     along = UnitField("size", source="along_m", required=False, allow_null=True)
     note = serializers.CharField(max_length=2000, required=False, allow_blank=True)
-    created_by = serializers.SlugRelatedField(slug_field="username", read_only=True)
+    created_by: serializers.SlugRelatedField[User] = serializers.SlugRelatedField(
+        slug_field="username", read_only=True
+    )
     photos = serializers.SerializerMethodField()
 
     class Meta:
@@ -420,7 +428,9 @@ class PhotoSerializer(serializers.ModelSerializer):
     wall = serializers.PrimaryKeyRelatedField(queryset=Wall.objects.none(), required=False)
     url = serializers.SerializerMethodField()
     thumbnail_url = serializers.SerializerMethodField()
-    uploaded_by = serializers.SlugRelatedField(slug_field="username", read_only=True)
+    uploaded_by: serializers.SlugRelatedField[User] = serializers.SlugRelatedField(
+        slug_field="username", read_only=True
+    )
 
     class Meta:
         model = Photo
@@ -485,7 +495,9 @@ class PhotoSerializer(serializers.ModelSerializer):
 
 
 class EventSerializer(serializers.ModelSerializer):
-    actor = serializers.SlugRelatedField(slug_field="username", read_only=True)
+    actor: serializers.SlugRelatedField[User] = serializers.SlugRelatedField(
+        slug_field="username", read_only=True
+    )
 
     class Meta:
         model = Event
