@@ -98,7 +98,7 @@ AUDIT_KEYS = (
 
 
 def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
-    out = {k: summary.get(k) for k in AUDIT_KEYS if k in summary}
+    out: dict[str, Any] = {k: summary.get(k) for k in AUDIT_KEYS if k in summary}
     for key in ("order", "needed"):
         if out.get(key) is not None:
             out[key] = [client_ids.get(i, str(i)) for i in out[key]]
@@ -162,7 +162,8 @@ def _audits(job: Job, walls: list[Wall], member: Member) -> tuple[dict, dict, li
 def vocabulary() -> dict:
     """The words of :mod:`qa.audit.verdicts` for the walk: wall states (with tone), ratings, gains."""
     terms = {"states": STATES, "ratings": RATINGS, "gains": GAINS}
-    out = {
+    # {group: {key: term}} for the term groups, plus "needed": one term
+    out: dict[str, dict[str, Any]] = {
         group: {k: {"word": t.word, "meaning": t.meaning, "tone": t.tone} for k, t in items.items()}
         for group, items in terms.items()
     }

@@ -168,7 +168,8 @@ Answer = tuple[dict, Conflict | None]
 
 def _seal_point_status(actor: Actor, op: Operation) -> Answer:
     actor.need("edit")
-    status = op.payload.get("status")
+    # A missing status reads as "", which tick_seal_point refuses like any status outside the list.
+    status = op.payload.get("status", "")
     point_id = parse_id(op.payload.get("seal_point"), "seal_point")
     batch = _PREFETCHED.get()
     point = batch.points.get(point_id) if batch is not None else None
@@ -206,6 +207,7 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
     serializer = FindingSerializer(data=op.payload, context={"job": actor.job})
     if not serializer.is_valid():
         raise Reject(_plain_errors(serializer.errors))
+    finding: Finding | None
     try:
         with transaction.atomic():
             finding = actions.create_finding(actor, serializer.validated_data)
@@ -214,7 +216,8 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
         finding = actions.findings.existing_finding(actor, serializer.validated_data.get("client_id"))
         if finding is None:
             raise
-    finding._prefetched_objects_cache = {"photos": Photo.objects.none()}  # a new finding has none yet
+    # A new finding has no photos yet. Django's prefetch cache is not declared in the model stubs.
+    finding._prefetched_objects_cache = {"photos": Photo.objects.none()}  # type: ignore[attr-defined]
     answer: dict = {"status": "applied", "finding": finding_data(finding, actor.job)}
     if finding.seal_point is not None:
         answer["seal_point"] = _seal_point_data(finding.seal_point)
@@ -367,8 +370,8 @@ def _envelope_answer(raw: Any, exc: Reject) -> tuple[uuid.UUID | None, str, dict
         parsed = uuid.UUID(op_id) if isinstance(op_id, str) else None
     except ValueError:
         parsed = None
-    kind = raw.get("kind") if isinstance(raw, dict) and isinstance(raw.get("kind"), str) else ""
-    return parsed, kind, answer
+    kind = raw.get("kind") if isinstance(raw, dict) else None
+    return parsed, kind if isinstance(kind, str) else "", answer
 
 
 def apply_batch(job: Job, member: Member, ops: Any, device_id: Any = "") -> list[dict]:
@@ -397,8 +400,10 @@ def apply_batch(job: Job, member: Member, ops: Any, device_id: Any = "") -> list
     for item in parsed:
         if isinstance(item, Operation):
             kinds.setdefault(item.op_id, item.kind)
-        elif envelopes[id(item)][0] is not None:
-            kinds.setdefault(envelopes[id(item)][0], envelopes[id(item)][1])
+        else:
+            envelope_id, envelope_kind, _ = envelopes[id(item)]
+            if envelope_id is not None:
+                kinds.setdefault(envelope_id, envelope_kind)
     answers: list[dict] = []
     with transaction.atomic(), deferred_invalidation(), buffered_events() as events:
         claims = _claim(job, member, device_id, kinds)
@@ -418,6 +423,7 @@ def apply_batch(job: Job, member: Member, ops: Any, device_id: Any = "") -> list
                     done[item.op_id] = answer
                     answers.append(answer)
                     if conflict is not None:
+                        assert row is not None  # every operation's id was claimed above
                         links.append((conflict, row))
                 else:
                     answer = envelopes[id(item)][2]
