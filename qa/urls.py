@@ -4,13 +4,13 @@ from __future__ import annotations
 
 from django.contrib import admin
 from django.contrib.auth import views as auth_views
-from django.urls import include, path
+from django.urls import URLPattern, URLResolver, include, path
 
 from . import converters  # noqa: F401  (registers <id:...>)
 from .api import photo_views
 from .views import pages
 
-qa_patterns = [
+qa_patterns: list[URLPattern | URLResolver] = [
     path("", pages.job_list, name="job-list"),
     path("login/", pages.LoginView.as_view(), name="login"),
     path("logout/", auth_views.LogoutView.as_view(), name="logout"),

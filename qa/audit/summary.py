@@ -154,7 +154,8 @@ def _inputs_and_model(wall, findings=None, memo: dict | None = None) -> tuple[di
     findings = list(findings)
     ctx = WallContext(wall, memo)
     flags = list(ctx.flags)
-    openings, doors, rows, used = [], [], [], 0.0
+    openings, rows, used = [], [], 0.0
+    doors: list[dict] = []  # at most one door set: the first door, when a door seal is a finding
     door_seals = any(is_door_seal(f) for f in findings)
     for o in _openings(wall):
         row, tl, oflags = opening_row(o, scheme)

@@ -23,6 +23,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 from dataclasses import dataclass
+from typing import Any
 
 from django.db.models import Count
 
@@ -283,7 +284,7 @@ def verdicts_for_walls(walls: Iterable, audits: dict[int, dict] | None = None) -
 
 def rollup(walls: Iterable, verdicts: dict[int, dict]) -> dict:
     """Coverage and states summed over ``walls``: {checked, total, walls, <state key>: count, text}."""
-    out = {"checked": 0, "total": 0, "walls": 0, **dict.fromkeys(STATES, 0)}
+    out: dict[str, Any] = {"checked": 0, "total": 0, "walls": 0, **dict.fromkeys(STATES, 0)}
     for w in walls:
         v = verdicts[w.pk]
         out["checked"] += v["coverage"]["checked"]

@@ -337,6 +337,7 @@ def _thumbs(job) -> dict[int, list[bytes]]:
     for p in Photo.objects.filter(job=job, removed=False, finding__isnull=False).order_by(
         "uploaded_at", "id"
     ):
+        assert p.finding_id is not None  # the query keeps only photos of a finding
         try:
             with p.thumbnail.open("rb") as fh:
                 out.setdefault(p.finding_id, []).append(fh.read())

@@ -30,7 +30,8 @@ def _finding_of(message) -> int | None:
 def split(request, shown: Iterable[int] = ()) -> tuple[list, dict[int, list]]:
     """(messages for the top of the page, {finding id: messages shown beside it})."""
     shown = set(shown)
-    top, beside = [], {}
+    top: list = []
+    beside: dict[int, list] = {}
     for m in messages.get_messages(request):
         fid = _finding_of(m)
         if fid in shown:
