@@ -75,8 +75,8 @@ def load_field_demo(job) -> None:
         wall.job = job
     for level, on, shift, note in TESTS:
         units = [w for w in walls.values() if w.level == level and "-D" in w.tag]
-        ranked = [(headline(field_prediction(w)), w) for w in units]
-        ranked = [(h, w) for h, w in ranked if h is not None and h["states"]["now"]["margin"] is not None]
+        predicted = [(headline(field_prediction(w)), w) for w in units]
+        ranked = [(h, w) for h, w in predicted if h is not None and h["states"]["now"]["margin"] is not None]
         if not ranked:
             continue
         head, wall = max(ranked, key=lambda hw: (hw[0]["states"]["now"]["margin"], hw[1].tag))

@@ -144,7 +144,7 @@ def parse_csv(text: str) -> dict[str, list[float | None]]:
     if unknown or missing or len(set(header)) != len(header):
         what = f"unknown {unknown[0]!r}" if unknown else f"missing {missing[0]!r}" if missing else "repeated"
         raise FieldInputError("columns", f"{what}; the columns are {', '.join(CSV_COLUMNS)} (b2 optional)")
-    out = {k: [None] * len(BANDS) for k in header if k != "band_hz"}
+    out: dict[str, list[float | None]] = {k: [None] * len(BANDS) for k in header if k != "band_hz"}
     seen = set()
     for n, row in enumerate(reader, start=2):
         if not any(c.strip() for c in row):

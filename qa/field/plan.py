@@ -161,6 +161,7 @@ def measured_summary(job, walls_fields: tuple[list, dict] | None = None) -> dict
             point = {"wall": w.tag, "wall_id": w.pk, "test": t["id"], **row}
             points.append(point)
             if row["difference"] <= -FAR_BELOW_DB:
+                assert pair is not None  # a difference needs a predicted pair (compare)
                 share = pair["states"]["now"]["share_by_route"]
                 top = max(share, key=share.get)
                 far.append({**point, "look_for": LOOK_FOR.get(top, top)})

@@ -58,7 +58,7 @@ def wall_curves(summary: dict) -> tuple[np.ndarray | None, str | None]:
     if summary.get("error"):
         return None, summary["error"]
     views = summary.get("views") or {}
-    rows = [
+    rows: list[Any] = [
         summary.get("designed_tl"),
         *((views.get(v) or {}).get("as_found_tl") for v in ("walked", "verified")),
     ]

@@ -139,6 +139,7 @@ def open_upload(member: Member, data: Any, device_id: str = "") -> tuple[dict, b
     if not isinstance(caption, str) or len(caption) > CAPTION_MAX:
         raise Reject({"caption": [f"must be text of at most {CAPTION_MAX} characters"]})
     finding = None
+    wall: Wall | None
     if data.get("finding"):
         finding = Finding.objects.filter(
             client_id=parse_uuid(data["finding"], "finding"), job=job, removed=False, wall__removed=False
