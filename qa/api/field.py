@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from django.db import transaction
 from django.http import HttpResponse
+from drf_spectacular.types import OpenApiTypes
+from drf_spectacular.utils import extend_schema
 from rest_framework import mixins, viewsets
 from rest_framework.response import Response
 
@@ -103,7 +105,8 @@ class FieldPredictionViewSet(WallChildMixin, viewsets.GenericViewSet):
     queryset = Wall.objects.none()
     serializer_class = fs.FieldPredictionSerializer
 
-    def list(self, request, *args, **kwargs):
+    @extend_schema(responses={200: fs.FieldPredictionSerializer}, tags=["field rating"])
+    def retrieve(self, request, *args, **kwargs):
         self.wall.job = self.job
         return Response(field_prediction(self.wall))
 
@@ -117,9 +120,11 @@ class TestPlanViewSet(JobScopedMixin, viewsets.GenericViewSet):
     def right_needed(self) -> str:
         return "view"
 
-    def list(self, request, *args, **kwargs):
+    @extend_schema(responses={200: fs.TestPlanSerializer}, tags=["field rating"])
+    def retrieve(self, request, *args, **kwargs):
         return Response(job_test_plan(self.job))
 
+    @extend_schema(responses={(200, "text/csv"): OpenApiTypes.STR}, tags=["field rating"])
     def csv(self, request, *args, **kwargs):
         response = HttpResponse(plan_csv(job_test_plan(self.job)), content_type="text/csv; charset=utf-8")
         response["Content-Disposition"] = f'attachment; filename="test-plan-job-{self.job.pk}.csv"'
@@ -135,11 +140,13 @@ class BuildingKindViewSet(JobScopedMixin, viewsets.GenericViewSet):
     def right_needed(self) -> str:
         return "view" if self.request.method in ("GET", "HEAD", "OPTIONS") else "edit"
 
-    def list(self, request, *args, **kwargs):
+    @extend_schema(responses={200: fs.BuildingKindSerializer}, tags=["field rating"])
+    def retrieve(self, request, *args, **kwargs):
         return Response({"building_kind": self.job.building_kind})
 
+    @extend_schema(responses={200: fs.BuildingKindSerializer}, tags=["field rating"])
     @transaction.atomic
-    def create(self, request, *args, **kwargs):
+    def update(self, request, *args, **kwargs):
         serializer = self.get_serializer(data=request.data)
         serializer.is_valid(raise_exception=True)
         self.job.building_kind = serializer.validated_data["building_kind"]

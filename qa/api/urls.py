@@ -37,16 +37,16 @@ urlpatterns = [
     ),
     path(
         "jobs/<id:job_pk>/walls/<id:wall_pk>/field-prediction/",
-        field.FieldPredictionViewSet.as_view({"get": "list"}),
+        field.FieldPredictionViewSet.as_view({"get": "retrieve"}),
         name="field-prediction",
     ),
-    path("jobs/<id:job_pk>/test-plan/", field.TestPlanViewSet.as_view({"get": "list"}), name="test-plan"),
+    path("jobs/<id:job_pk>/test-plan/", field.TestPlanViewSet.as_view({"get": "retrieve"}), name="test-plan"),
     path(
         "jobs/<id:job_pk>/test-plan.csv", field.TestPlanViewSet.as_view({"get": "csv"}), name="test-plan-csv"
     ),
     path(
         "jobs/<id:job_pk>/building-kind/",
-        field.BuildingKindViewSet.as_view({"get": "list", "put": "create"}),
+        field.BuildingKindViewSet.as_view({"get": "retrieve", "put": "update"}),
         name="building-kind",
     ),
     path("auth/token/", auth.ObtainToken.as_view(), name="token"),
