@@ -39,6 +39,7 @@ __all__ = [
 
 from .assembly import CONNECTION_TYPES, Assembly, Cavity, Connection, Leaf, WallSpecError
 from .bands import averaging_frequencies
+from .compound_gaps import annular_gap, series_slit
 from .defects import (
     back_to_back_boxes,
     channel_short_circuit,
@@ -71,14 +72,12 @@ from .leaks import (
     FLAG_TEXT,
     Leak,
     added_area,
-    annular_gap,
     band_average,
     crack,
     filled_gap,
     hole,
     open_area,
     ring_gap,
-    series_slit,
     skin_gap,
     slit,
 )

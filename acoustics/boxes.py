@@ -15,7 +15,7 @@ Model (derived in this project):
 
 - box opening: a_box = hole of the box's equivalent leak area (default 1 in^2 = 6.45 cm^2, the
   leaky metal box of the issue's table; "airtight" boxes 0) through the board thickness, plus the
-  cut-out gap as a closed loop slit of the box perimeter (:func:`acoustics.leaks.annular_gap` with
+  cut-out gap as a closed loop slit of the box perimeter (:func:`acoustics.compound_gaps.annular_gap` with
   the same perimeter); both reach the cavity;
 - a putty pad or box wrap sealed to the board puts a limp mass m_pad over both:
   a -> a tau_pad, tau_pad = 1 / (1 + (omega m_pad / (2 rho0 c0))^2) (normal-incidence mass law;
@@ -48,9 +48,10 @@ import numpy.typing as npt
 
 from .bands import exact_centres
 from .cavity_paths import CavityGeometry, Port, pair_coupling
+from .compound_gaps import annular_gap
 from .constants import C0, RHO0
 from .errors import GeometryError
-from .leaks import annular_gap, hole
+from .leaks import hole
 
 __all__ = ["BoxSpec", "box_opening", "pad_factor", "BOX_LEAK_AREA", "PAD_SURFACE_DENSITY"]
 

@@ -25,12 +25,13 @@ from . import defects
 from .assembly import Assembly
 from .boxes import BoxSpec, box_opening, box_pair
 from .cavity_paths import Port, direct_coupling, line_coupling
+from .compound_gaps import annular_gap
 from .doors import DoorSet, door_leak
 from .errors import GeometryError
-from .leaks import Leak, annular_gap, filled_gap, hole, open_area, skin_gap, slit
+from .leaks import Leak, filled_gap, hole, open_area, skin_gap, slit
 
 if TYPE_CHECKING:
-    from .wall_model import Construction
+    from .construction import Construction
 
 #: Board thickness assumed for a one-face gap when the layers are unknown, m (15.9 mm board).
 DEFAULT_BOARD = 0.0159

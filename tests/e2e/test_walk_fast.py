@@ -41,7 +41,14 @@ def section_points(page, face: str, status: str | None = None) -> list[int]:
 
 
 def box(page, selector: str) -> dict:
-    return page.locator(selector).first.bounding_box()
+    """The element's box. The walk redraws a screen when a sync lands (a moment after each tap), so
+    the element may be between two drawings: ask again until it is on the page (at most 5 s)."""
+    for _ in range(50):
+        found = page.locator(selector).first.bounding_box()
+        if found is not None:
+            return found
+        page.wait_for_timeout(100)
+    raise AssertionError(f"{selector} is not on the page")
 
 
 def overlaps(a: dict, b: dict) -> bool:
