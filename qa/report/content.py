@@ -26,7 +26,7 @@ from ..audit.presentation import finding_size, position_text
 from ..audit.verdicts import by_level, face_name, glossary, rollup, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
 from ..choices import FindingStatus
-from ..models import Event, Finding, Photo, Wall
+from ..models import Event, Finding, Photo, SealPoint, Wall
 
 #: Spreadsheet programs run a cell starting with one of these as a formula (CSV injection).
 FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
@@ -45,6 +45,21 @@ def size_text(f, u: str) -> str:
     return finding_size(f, u)
 
 
+def chart_data(summary: dict) -> dict:
+    """The part of an audit summary the report's chart draws (:func:`qa.audit.chart.tl_chart`)."""
+    views = summary.get("views") or {}
+
+    def view(name: str) -> dict:
+        v = views.get(name) or {}
+        return {k: v.get(k) for k in ("as_found", "as_found_tl", "after", "after_tl")}
+
+    keys = ("error", "designed", "rating_name", "scheme", "designed_tl")
+    return {
+        **{k: summary.get(k) for k in keys},
+        "views": {"verified": view("verified"), "walked": view("walked")},
+    }
+
+
 def report_content(job) -> dict:
     """Everything the report states, as JSON-ready data (3 queries when the audits are cached)."""
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
@@ -56,12 +71,23 @@ def report_content(job) -> dict:
         .order_by("wall__level", "wall__tag", "id")
     )
     photos: dict[int, list[str]] = {}
-    for fid, sha in (
-        Photo.objects.filter(job=job, removed=False, finding__isnull=False)
+    wall_photos: dict[int, list[str]] = {}
+    for wid, fid, sha in (
+        Photo.objects.filter(job=job, removed=False)
         .order_by("uploaded_at", "id")
-        .values_list("finding_id", "sha256")
+        .values_list("wall_id", "finding_id", "sha256")
     ):
-        photos.setdefault(fid, []).append(sha)
+        if fid is None:
+            wall_photos.setdefault(wid, []).append(sha)
+        else:
+            photos.setdefault(fid, []).append(sha)
+    points: dict[int, list[list[str]]] = {}
+    for wid, label, face, status in (
+        SealPoint.objects.filter(wall__in=walls, removed=False)
+        .order_by("wall_id", "position", "id")
+        .values_list("wall_id", "label", "face", "status")
+    ):
+        points.setdefault(wid, []).append([label, face, status])
     u = job.units
     steps = {w.pk: fix_steps(audits[w.pk]) for w in walls}
     verdicts = verdicts_for_walls(walls, audits)
@@ -85,6 +111,12 @@ def report_content(job) -> dict:
                 "points": v["coverage"]["total"],
                 "faces_text": v["faces_text"],
                 "wall_type": f"{w.wall_type.code} {w.wall_type.name}",
+                "lab_reference": w.wall_type.lab_reference,
+                "fire_rated": w.wall_type.fire_rated,
+                "seal_points": points.get(w.pk, []),
+                "photos": wall_photos.get(w.pk, []),
+                # What the PDF's chart draws, so the hash covers the curves as well as the numbers.
+                "chart": chart_data(a),
                 "size": f"{units.fmt(w.length_m, 'size', u)} x {units.fmt(w.height_m, 'size', u)}",
                 "scheme": a["scheme"],
                 "rating_name": a["rating_name"],

@@ -8,11 +8,10 @@ from __future__ import annotations
 
 import io
 
-from ..audit import audits_for_walls
 from ..audit import chart as chart_mod
 from ..audit.verdicts import GAINS, NEEDED, RATINGS
 from ..choices import FindingStatus
-from ..models import Photo, Wall
+from ..models import Photo
 from .content import _when, _who, content_sha256, last_sign_off
 
 _LATIN = str.maketrans(
@@ -64,9 +63,9 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
 
     digest = content_sha256(content)
     signed = last_sign_off(job)
-    walls = {w.pk: w for w in Wall.objects.live().filter(job=job).select_related("wall_type")}
-    audits = audits_for_walls(list(walls.values()))
-    thumbs = _thumbs(job) if photos else {}
+    # Everything printed comes from ``content`` (hashed for sign-off); photos are looked up by the
+    # SHA-256 the content lists, so what is signed is what is printed.
+    thumbs = _thumbs(job, content) if photos else {}
 
     pdf = FPDF(format="A4")
     pdf.set_auto_page_break(True, margin=15)
@@ -86,16 +85,24 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         para(text, size, "B", 7)
 
     def row(cells, widths, style="", size=8, fill=False, tone=None):
+        # A cell too narrow for its text wraps onto more lines (the row grows); nothing is cut.
         pdf.set_font("Helvetica", style, size)
-        if pdf.will_page_break(5):
+        wrapped = [_wrap(pdf, pdf_text(text), width - 1) for text, width in zip(cells, widths, strict=True)]
+        h = 4 * max(len(lines) for lines in wrapped) + 1
+        if pdf.will_page_break(h):
             pdf.add_page()
-        for k, (text, width) in enumerate(zip(cells, widths, strict=True)):
+        x, y = pdf.get_x(), pdf.get_y()
+        for k, (lines, width) in enumerate(zip(wrapped, widths, strict=True)):
             # The state cell (the one before last) takes its tone's colour: meeting the target is never red.
             if tone and k == len(cells) - 2:
                 pdf.set_text_color(*TONE_RGB.get(tone, (0, 0, 0)))
-            pdf.cell(width, 5, _fit(pdf, pdf_text(text), width - 1), border="B", fill=fill)
+            for i, line in enumerate(lines):
+                pdf.set_xy(x, y + 0.5 + 4 * i)
+                pdf.cell(width, 4, line, fill=fill)
             pdf.set_text_color(0, 0, 0)
-        pdf.ln(5)
+            x += width
+        pdf.line(pdf.l_margin, y + h, x, y + h)
+        pdf.set_xy(pdf.l_margin, y + h)
 
     pdf.add_page()
     j = content["job"]
@@ -216,7 +223,10 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         para(f"{w['state_text']}.", 10, "B")
         pdf.set_text_color(0, 0, 0)
         para(
-            f"{w['wall_type']}; {w['size']}. {RATINGS['target'].word} {_rating(w, w['target'])}, "
+            f"{w['wall_type']}"
+            f"{' (' + w['lab_reference'] + ')' if w['lab_reference'] else ''}"
+            f"{', fire-rated' if w['fire_rated'] else ''}; faces A: {w['face_a']}, B: {w['face_b']}; "
+            f"{w['size']}. {RATINGS['target'].word} {_rating(w, w['target'])}, "
             f"{RATINGS['designed'].word.lower()} {_rating(w, w['designed'])}, "
             f"{RATINGS['as_found'].word.lower()} {_rating(w, w['walked'])}, "
             f"{RATINGS['current'].word.lower()} {_rating(w, w['current'])}, "
@@ -229,7 +239,7 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
         if w["error"]:
             para(f"No rating: {w['error']}", 9, "B")
         else:
-            _draw_chart(pdf, chart_mod.tl_chart(audits[w["id"]], verdict={"tone": w["tone"]}))
+            _draw_chart(pdf, chart_mod.tl_chart(w["chart"], verdict={"tone": w["tone"]}))
         for text in w["flags"]:
             para(f"Model note: {text}", 7, h=3.5)
         for u in w["unmodelled"]:
@@ -265,7 +275,7 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
                 if x
             )
             para(detail, 7.5, h=3.6)
-            pics = thumbs.get(f["id"], [])[:3]
+            pics = [thumbs[sha] for sha in f["photos"] if sha in thumbs][:3]
             if pics:
                 if pdf.will_page_break(26):
                     pdf.add_page()
@@ -302,45 +312,67 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
     return bytes(pdf.output())
 
 
+def _widths(pdf) -> dict[str, float]:
+    """Character widths (mm) of the current font, remembered per font: a string's width is their sum."""
+    key = (pdf.font_family, pdf.font_style, pdf.font_size_pt)
+    cache = _WIDTHS.setdefault(key, {})
+    return cache
+
+
+_WIDTHS: dict[tuple, dict[str, float]] = {}
+
+
+def _width(pdf, text: str, table: dict[str, float]) -> float:
+    total = 0.0
+    for ch in text:
+        w = table.get(ch)
+        if w is None:
+            w = table[ch] = pdf.get_string_width(ch)
+        total += w
+    return total
+
+
 def _wrap(pdf, text: str, width: float) -> list[str]:
-    """Lines of ``text`` no wider than ``width`` mm in the current font (words kept whole when they fit)."""
-    space = pdf.get_string_width(" ")
+    """Lines of ``text`` no wider than ``width`` mm in the current font.
+
+    Linear in the length of the text: each character's width is measured once per font. A word wider
+    than the line is broken across lines, never cut: the printed text is the whole hashed text.
+    """
+    table = _widths(pdf)
+    space = _width(pdf, " ", table)
     lines: list[str] = []
     for raw in text.split("\n"):
         line, used = "", 0.0
         for word in raw.split(" "):
-            w = pdf.get_string_width(word)
+            w = _width(pdf, word, table)
             if line and used + space + w <= width:
                 line, used = f"{line} {word}", used + space + w
                 continue
             if line:
                 lines.append(line)
-            if w > width:
-                word = _fit(pdf, word, width)
-                w = pdf.get_string_width(word)
+            while w > width and len(word) > 1:  # break a long word where the line is full
+                part, part_w = "", 0.0
+                for ch in word:
+                    cw = table[ch]
+                    if part and part_w + cw > width:
+                        break
+                    part, part_w = part + ch, part_w + cw
+                lines.append(part)
+                word = word[len(part) :]
+                w = _width(pdf, word, table)
             line, used = word, w
         lines.append(line)
     return lines
 
 
-def _fit(pdf, text: str, width: float) -> str:
-    """``text`` cut to ``width`` mm in the current font, with '...' when cut (table cells only)."""
-    if pdf.get_string_width(text) <= width:
-        return text
-    while text and pdf.get_string_width(text + "...") > width:
-        text = text[:-1]
-    return text + "..."
-
-
-def _thumbs(job) -> dict[int, list[bytes]]:
-    out: dict[int, list[bytes]] = {}
-    for p in Photo.objects.filter(job=job, removed=False, finding__isnull=False).order_by(
-        "uploaded_at", "id"
-    ):
-        assert p.finding_id is not None  # the query keeps only photos of a finding
+def _thumbs(job, content: dict) -> dict[str, bytes]:
+    """Thumbnails of the photos the content lists, by the SHA-256 of the stored image."""
+    wanted = {sha for f in content["findings"] for sha in f["photos"][:3]}
+    out: dict[str, bytes] = {}
+    for p in Photo.objects.filter(job=job, removed=False, sha256__in=wanted):
         try:
             with p.thumbnail.open("rb") as fh:
-                out.setdefault(p.finding_id, []).append(fh.read())
+                out[p.sha256] = fh.read()
         except (OSError, ValueError):
             continue  # a missing file must not stop the report; the photo's hash is still listed
     return out
@@ -402,3 +434,22 @@ def _draw_chart(pdf, chart) -> None:
     pdf.set_draw_color(0, 0, 0)
     pdf.set_line_width(0.2)
     pdf.set_xy(pdf.l_margin, y0 + chart_mod.H * scale + 2)
+
+
+#: A rendered report is kept this long in the cache, s; its key changes whenever what it prints changes.
+PDF_CACHE_SECONDS = 7 * 24 * 3600
+
+
+def cached_pdf(job, content: dict) -> bytes:
+    """The report's PDF, rendered once per printed content: the key is the content's SHA-256 and the
+    sign-off the PDF states, so a change to either renders anew and a repeat download is served from
+    Django's cache (shared by every server process)."""
+    from django.core.cache import cache
+
+    signed = last_sign_off(job)
+    key = f"sealwalk:report-pdf:{content_sha256(content)}:{signed.pk if signed is not None else '-'}"
+    pdf = cache.get(key)
+    if pdf is None:
+        pdf = render_pdf(job, content)
+        cache.set(key, pdf, PDF_CACHE_SECONDS)
+    return pdf

@@ -56,7 +56,7 @@ def report_page(request, job_pk):
 def report_pdf(request, job_pk):
     job, _member = job_for(request.user, job_pk)
     content = report_mod.report_content(job)
-    pdf = report_mod.render_pdf(job, content)
+    pdf = report_mod.cached_pdf(job, content)
     response = HttpResponse(pdf, content_type="application/pdf")
     response["Content-Disposition"] = f'attachment; filename="{report_mod.file_stem(job)}-handover.pdf"'
     return response
