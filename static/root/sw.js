@@ -1,6 +1,6 @@
 // Sealwalk service worker. One version constant; the app shell is precached from the hashed static
 // URLs named in the walk's shell page; pages are network-first with an offline fallback.
-const BUILD = "walk-2026-2";
+const BUILD = "walk-2026-3";
 // A deploy may register the worker as /sw.js?build=<id>; the id joins the version so caches follow it.
 const BUILD_ID = new URL(self.location.href).searchParams.get("build");
 const VERSION = BUILD_ID ? `${BUILD}+${BUILD_ID}` : BUILD;
@@ -9,7 +9,8 @@ const SHELL_CACHE = `${PREFIX}shell-${VERSION}`;
 const PAGES_CACHE = `${PREFIX}pages-${VERSION}`;
 // Kept across versions: photos do not change. The walk fills and bounds it (photocache.js); this
 // worker only reads it, so nothing lands there without the walk's size bookkeeping.
-const PHOTOS_CACHE = `${PREFIX}photos`;
+// One per signed-in user (account.js), so the prefix is what this worker knows.
+const PHOTOS_PREFIX = `${PREFIX}photos-`;
 const SHELL_URL = "/walk/";
 
 async function precache() {
@@ -31,9 +32,9 @@ self.addEventListener("install", (event) => {
 
 self.addEventListener("activate", (event) => {
   event.waitUntil((async () => {
-    const keep = new Set([SHELL_CACHE, PAGES_CACHE, PHOTOS_CACHE]);
+    const keep = new Set([SHELL_CACHE, PAGES_CACHE]);
     for (const name of await caches.keys()) {
-      if (name.startsWith(PREFIX) && !keep.has(name)) await caches.delete(name);
+      if (name.startsWith(PREFIX) && !keep.has(name) && !name.startsWith(PHOTOS_PREFIX)) await caches.delete(name);
     }
     await self.clients.claim();
     for (const client of await self.clients.matchAll({ type: "window" })) {
@@ -76,8 +77,12 @@ async function cacheFirst(request, cacheName) {
 }
 
 async function cachedPhoto(request) {
-  const hit = await (await caches.open(PHOTOS_CACHE)).match(request.url);
-  return hit || fetch(request);
+  for (const name of await caches.keys()) {
+    if (!name.startsWith(PHOTOS_PREFIX)) continue;
+    const hit = await (await caches.open(name)).match(request.url);
+    if (hit) return hit;
+  }
+  return fetch(request);
 }
 
 self.addEventListener("fetch", (event) => {

@@ -96,8 +96,9 @@ def waiting(page) -> tuple[int, int]:
 
 def device_photo_hashes(page) -> list[str]:
     return page.evaluate("""async () => {
+      const { dbName } = await import('/static/qa/walk/account.js');
       const db = await new Promise((ok, no) => {
-        const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
+        const r = indexedDB.open(dbName()); r.onsuccess = () => ok(r.result); r.onerror = no; });
       const rows = await new Promise((ok) => {
         const q = db.transaction('photos').objectStore('photos').getAll();
         q.onsuccess = () => ok(q.result); });

@@ -57,7 +57,8 @@ def add_photo(world, finding, purpose, color):
     return photo
 
 
-CACHED = """async () => (await (await caches.open('sealwalk-photos')).keys())
+CACHED = """async () => (await (await caches.open(
+    (await import('/static/qa/walk/account.js')).photoCacheName())).keys())
   .map((r) => new URL(r.url).pathname)"""
 
 

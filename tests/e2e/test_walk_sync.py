@@ -20,8 +20,9 @@ ALL_SENT = (
 )
 
 OUTBOX = """async () => {
+  const { dbName } = await import('/static/qa/walk/account.js');
   const db = await new Promise((ok, no) => {
-    const r = indexedDB.open('sealwalk-walk'); r.onsuccess = () => ok(r.result); r.onerror = no; });
+    const r = indexedDB.open(dbName()); r.onsuccess = () => ok(r.result); r.onerror = no; });
   return await new Promise((ok) => {
     const q = db.transaction('outbox').objectStore('outbox').getAll(); q.onsuccess = () => ok(q.result); });
 }"""

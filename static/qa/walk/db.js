@@ -1,5 +1,7 @@
 // IndexedDB: job bundles, the outbox of operations, photo blobs waiting to upload, small settings.
-const NAME = "sealwalk-walk";
+import { dbName } from "./account.js";
+
+const NAME = dbName();
 const VERSION = 1;
 let opening = null;
 

@@ -2,9 +2,10 @@
 // (and after each sync), full images on request. One Cache Storage cache shared with the service
 // worker, which answers photo URLs from it; a small index in IndexedDB keeps the total under
 // MAX_BYTES (oldest out first) and knows which job each photo belongs to, so removing a job purges it.
+import { photoCacheName } from "./account.js";
 import * as db from "./db.js";
 
-export const CACHE = "sealwalk-photos";
+export const CACHE = photoCacheName();
 export const MAX_BYTES = 50e6; // a phone's share for photos; the oldest go first past it
 const INDEX = "photo-cache";
 const PARALLEL = 4;
