@@ -204,3 +204,37 @@ def scatter_svg(points: list[dict], far_db: int) -> SafeString:
         )
     out.append("</svg>")
     return mark_safe("".join(out))
+
+
+#: What goes with every field figure the product prints.
+FIELD_CAUTION = (
+    "A field prediction is not a field test: field tests follow ASTM E336 or ISO 16283-1 and are done by "
+    "qualified testers; local codes and the authority having jurisdiction govern."
+)
+
+
+def field_summary(result: dict) -> dict[str, Any] | None:
+    """One wall's field rating for the report and the CSV: the deciding room pair's descriptor, its
+    target, the prediction as designed / as walked / now with the margin now, and the latest measured
+    value in the same descriptor (None when no test rated it)."""
+    head = headline(result)
+    if head is None:
+        return None
+    target = head["target"]
+    key = target["descriptor"] if target else "astc"
+    measured = None
+    for test in result.get("tests", []):
+        if head.get("room_pair") in (None, test.get("room_pair")):
+            measured = _single(test.get("results"), key)
+            if measured is not None:
+                break
+    return {
+        "descriptor": DESCRIPTOR_NAMES[key],
+        "target": target["value"] if target else None,
+        "target_derived": bool(target and target["derived"]),
+        "designed": _single(head["states"]["designed"], key),
+        "walked": _single(head["states"]["walked"], key),
+        "now": _single(head["states"]["now"], key),
+        "margin": head["states"]["now"]["margin"],
+        "measured": measured,
+    }

@@ -26,6 +26,8 @@ from ..audit.presentation import finding_size, position_text
 from ..audit.verdicts import by_level, face_name, glossary, rollup, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
 from ..choices import FindingStatus
+from ..field.prediction import field_for_walls
+from ..field.presentation import FIELD_CAUTION, field_summary
 from ..models import Event, Finding, Photo, SealPoint, Wall
 
 #: Spreadsheet programs run a cell starting with one of these as a formula (CSV injection).
@@ -82,15 +84,16 @@ def report_content(job) -> dict:
         else:
             photos.setdefault(fid, []).append(sha)
     points: dict[int, list[list[str]]] = {}
-    for wid, label, face, status in (
+    for wid, label, face, point_status in (
         SealPoint.objects.filter(wall__in=walls, removed=False)
         .order_by("wall_id", "position", "id")
         .values_list("wall_id", "label", "face", "status")
     ):
-        points.setdefault(wid, []).append([label, face, status])
+        points.setdefault(wid, []).append([label, face, point_status])
     u = job.units
     steps = {w.pk: fix_steps(audits[w.pk]) for w in walls}
     verdicts = verdicts_for_walls(walls, audits)
+    fields = field_for_walls(walls, job.building_kind)
     wall_rows = []
     for w in walls:
         a = audits[w.pk]
@@ -117,6 +120,7 @@ def report_content(job) -> dict:
                 "photos": wall_photos.get(w.pk, []),
                 # What the PDF's chart draws, so the hash covers the curves as well as the numbers.
                 "chart": chart_data(a),
+                "field": field_summary(fields[w.pk]),
                 "size": f"{units.fmt(w.length_m, 'size', u)} x {units.fmt(w.height_m, 'size', u)}",
                 "scheme": a["scheme"],
                 "rating_name": a["rating_name"],
@@ -195,6 +199,7 @@ def report_content(job) -> dict:
         },
         "glossary": glossary(),
         "cautions": [[c.title, c.text, c.basis] for c in (CAUTIONS[k] for k in GENERAL_CAUTIONS)],
+        "field_caution": FIELD_CAUTION,
     }
 
 
@@ -248,6 +253,19 @@ def neutralise(value) -> str:
 BOM = "\ufeff"
 
 
+def _field_cells(field: dict | None) -> list:
+    """The wall's field prediction in the CSV: descriptor and value, target, margin, measured."""
+    if field is None:
+        return ["", "", "", ""]
+    name = field["descriptor"]
+    return [
+        f"{name} {field['now']}" if field["now"] is not None else "",
+        f"{name} {field['target']}" if field["target"] is not None else "",
+        f"{field['margin']:+.0f}" if field["margin"] is not None else "",
+        f"{name} {field['measured']}" if field["measured"] is not None else "",
+    ]
+
+
 def punch_list_csv(job, content: dict | None = None) -> str:
     """The punch list (every live finding) as CSV, one row per finding, sizes in the job's units.
 
@@ -277,6 +295,10 @@ def punch_list_csv(job, content: dict | None = None) -> str:
             "needed for target",
             "wall state",
             "wall seal points checked",
+            "wall field rating predicted now",
+            "wall field target",
+            "wall field margin now",
+            "wall field rating measured",
             "note",
             "found by",
             "found at",
@@ -309,6 +331,7 @@ def punch_list_csv(job, content: dict | None = None) -> str:
                     "yes" if f["needed"] else "",
                     walls[f["wall"]]["state_text"],
                     f"{walls[f['wall']]['checked']} of {walls[f['wall']]['points']}",
+                    *_field_cells(walls[f["wall"]]["field"]),
                     f["note"],
                     f["found_by"],
                     f["found_at"],

@@ -234,6 +234,22 @@ def render_pdf(job, content: dict, *, photos: bool = True) -> bytes:
             f"{w['faces_text'] or 'none on this wall'}.",
             9,
         )
+        if w["field"] is not None:
+            fd = w["field"]
+            margin = f", margin {fd['margin']:+.0f}" if fd["margin"] is not None else ""
+            target = (
+                f" against a field target of {fd['descriptor']} {fd['target']}"
+                f"{' (derived from the STC target)' if fd['target_derived'] else ''}"
+                if fd["target"] is not None
+                else ""
+            )
+            measured = f"; measured {fd['descriptor']} {fd['measured']}" if fd["measured"] is not None else ""
+            para(
+                f"Predicted field rating now: {fd['descriptor']} {fd['now']}{target}{margin} "
+                f"(as designed {fd['designed']}, as walked {fd['walked']}){measured}. "
+                f"{content['field_caution']}",
+                8,
+            )
         if w["terms"]:
             para(f"Current spectrum terms: C {w['terms']['c']}, Ctr {w['terms']['ctr']} dB (ISO 717-1).", 8)
         if w["error"]:

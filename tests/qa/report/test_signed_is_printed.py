@@ -124,3 +124,20 @@ def test_the_same_content_is_rendered_once(world, finding, monkeypatch):
     change_point(world)
     pdf.cached_pdf(world.job, report.report_content(world.job))
     assert len(calls) == 2, "a change to the content renders anew"
+
+
+def test_the_report_and_the_csv_carry_each_walls_field_prediction_with_its_caution(world, finding):
+    import csv
+    import io
+
+    content = report.report_content(world.job)
+    field = content["walls"][0]["field"]
+    # world's wall: STC target 50, so a field target of ASTC 45 is derived (STC target less 5; the
+    # code allowance for field-tested walls, from memory — see qa/field/inputs.py).
+    assert field["descriptor"] == "ASTC" and field["target"] == 45 and field["target_derived"]
+    assert field["margin"] == field["now"] - 45
+    rows = list(csv.DictReader(io.StringIO(report.punch_list_csv(world.job, content).lstrip("\ufeff"))))
+    assert rows[0]["wall field rating predicted now"] == f"ASTC {field['now']}"
+    assert rows[0]["wall field target"] == "ASTC 45"
+    text = pdf_strings(report.render_pdf(world.job, content))
+    assert "Predicted field rating now" in text and "is not a field test" in text.replace("  ", " ")
