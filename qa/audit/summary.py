@@ -365,10 +365,15 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
     try:
         if model is None:
             model = acoustics.wall_model(**inputs)
-        views = {
-            name: _view(model, sel, ids, statuses, scheme, target, missing, meta["kinds"])
-            for name, sel in pick.items()
-        }
+        # Views with the same open findings are the same audit: compute each distinct one once (while
+        # nothing is fixed yet — most of a walk — the three views are one).
+        done: dict[tuple[int, ...], dict] = {}
+        views = {}
+        for name, sel in pick.items():
+            key = tuple(sel)
+            if key not in done:
+                done[key] = _view(model, sel, ids, statuses, scheme, target, missing, meta["kinds"])
+            views[name] = done[key]
     except (acoustics.RatingError, acoustics.GeometryError) as exc:
         out["error"] = f"No rating: {exc}"
         return out
