@@ -16,19 +16,28 @@ export function auditPanel(state, wall, findings) {
     const row = (audit.rows || []).find((r) => r.finding === cid);
     return (row && row.label) || (f ? kindLabel(state, f.kind) : "finding");
   };
+  // The same words as the desktop, from the bundle's vocabulary (qa/audit/verdicts.py): "as found" is
+  // every finding open, "current" counts only fixes the inspector verified.
+  const words = wordsOf(state);
   const facts = h("dl", { class: "ratings" },
-    h("div", {}, h("dt", {}, "Designed"), h("dd", {}, audit.designed ?? "—")),
-    h("div", { class: "asfound" }, h("dt", {}, "As found"), h("dd", {}, audit.as_found ?? "—")),
-    h("div", {}, h("dt", {}, "Target"), h("dd", {}, audit.target ?? "none")));
+    h("div", {}, h("dt", {}, words.ratings.designed), h("dd", {}, audit.designed ?? "—")),
+    h("div", { class: "asfound" }, h("dt", {}, words.ratings.as_found), h("dd", {}, audit.walked ?? audit.as_found ?? "—")),
+    h("div", { class: "current" }, h("dt", {}, words.ratings.current), h("dd", {}, audit.as_found ?? "—")),
+    h("div", {}, h("dt", {}, words.ratings.target), h("dd", {}, audit.target ?? "none")));
   const order = (audit.order || []).map((cid, i) => {
-    const gain = (audit.rows || []).find((r) => r.finding === cid)?.gain;
+    const alone = (audit.rows || []).find((r) => r.finding === cid)?.gain;
     const after = audit.after ? audit.after[i] : null;
-    return h("li", {}, label(cid), gain != null ? h("span", { class: "gain" }, ` +${gain} alone`) : null,
+    const before = i === 0 ? audit.as_found : audit.after ? audit.after[i - 1] : null;
+    const inOrder = after != null && before != null ? after - before : null;
+    return h("li", {}, label(cid),
+      inOrder != null ? h("span", { class: "gain" }, ` +${inOrder} ${words.gains.in_order}`) : null,
+      alone != null ? h("span", { class: "gain alone" }, ` (+${alone} ${words.gains.alone})`) : null,
       after != null ? h("span", { class: "after" }, ` → ${after}`) : null);
   });
   const open = opened.has(wall.id);
   const summary = audit.error ? `${name} leak audit`
-    : `${name} leak audit · as found ${audit.as_found ?? "—"} · target ${audit.target ?? "none"}`;
+    : `${name} leak audit · ${words.ratings.current.toLowerCase()} ${audit.as_found ?? "—"} · `
+      + `${words.ratings.target.toLowerCase()} ${audit.target ?? "none"}`;
   const panel = h("details", { class: `audit${stale ? " stale" : ""}`, open, "data-audit": stale ? "stale" : "current" },
     h("summary", { id: "audit-h" }, summary, stale ? h("span", { class: "chip info" }, "last known") : null),
     stale ? h("p", { class: "stale-note", "data-audit-stale": "" },
@@ -44,6 +53,21 @@ export function auditPanel(state, wall, findings) {
   // The screen is redrawn after every tick: keep the panel as the user left it.
   panel.addEventListener("toggle", () => (panel.open ? opened.add(wall.id) : opened.delete(wall.id)));
   return panel;
+}
+
+/** The bundle's words for ratings and gains (with the desktop's defaults for an older bundle). */
+function wordsOf(state) {
+  const v = (state.bundle && state.bundle.vocabulary) || {};
+  const word = (group, key, fallback) => (v[group] && v[group][key] && v[group][key].word) || fallback;
+  return {
+    ratings: {
+      designed: word("ratings", "designed", "Designed"),
+      as_found: word("ratings", "as_found", "As found"),
+      current: word("ratings", "current", "Current"),
+      target: word("ratings", "target", "Target"),
+    },
+    gains: { in_order: word("gains", "in_order", "in order"), alone: word("gains", "alone", "alone") },
+  };
 }
 
 export function kindLabel(state, kind) {

@@ -1,0 +1,45 @@
+"""The walk and the desktop show the same number under the same word: "as found" is the wall with
+every finding open, "current" counts only the fixes the inspector verified; fix-first gains say
+whether they are "in order" or "alone"."""
+
+from __future__ import annotations
+
+import pytest
+
+from tests.conftest import login
+
+pytestmark = [pytest.mark.e2e, pytest.mark.django_db(transaction=True)]
+
+
+def test_walk_audit_panel_uses_the_desktop_words_for_the_same_numbers(live_server, browser, world):
+    from qa.audit import audit_summary
+    from qa.audit.verdicts import RATINGS
+    from qa.models import Finding
+
+    common = {"job": world.job, "wall": world.wall, "created_by": world.inspector, "face": "through"}
+    Finding.objects.create(kind="hole", diameter_m=0.05, trade="electrical", status="verified", **common)
+    Finding.objects.create(kind="slit", width_m=0.0005, length_m=0.3, trade="drywall", **common)
+    summary = audit_summary(world.wall)
+    assert summary["walked"] != summary["as_found"], "the case needs as found and current to differ"
+
+    ctx = browser.new_context(viewport={"width": 390, "height": 844})
+    page = ctx.new_page()
+    login(page, live_server.url, "insp")
+    page.goto(live_server.url + "/")
+    page.evaluate("() => navigator.serviceWorker.ready.then(() => true)")
+    page.goto(live_server.url + "/walk/")
+    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
+    page.click(f"[data-take-offline='{world.job.id}']")
+    page.wait_for_selector("[data-wall-list]")
+    page.fill("#wall-search", world.wall.tag)
+    page.click(f"[data-wall='{world.wall.tag}']")
+    page.click("[data-audit] summary")
+    shown = page.eval_on_selector_all(
+        "[data-audit] dl.ratings > div",
+        "els => els.map(e => [e.querySelector('dt').textContent, e.querySelector('dd').textContent])",
+    )
+    ratings = dict(shown)
+    assert ratings[RATINGS["as_found"].word] == str(summary["walked"])
+    assert ratings[RATINGS["current"].word] == str(summary["as_found"])
+    assert "in order" in page.inner_text("[data-audit] .fix-first")
+    ctx.close()
