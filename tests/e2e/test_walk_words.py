@@ -42,4 +42,8 @@ def test_walk_audit_panel_uses_the_desktop_words_for_the_same_numbers(live_serve
     assert ratings[RATINGS["as_found"].word] == str(summary["walked"])
     assert ratings[RATINGS["current"].word] == str(summary["as_found"])
     assert "in order" in page.inner_text("[data-audit] .fix-first")
+    # Colour means the same as on the desktop: only a rating short of its target is red.
+    for cls, value in (("asfound", summary["walked"]), ("current", summary["as_found"])):
+        below = "below" in page.get_attribute(f"[data-audit] dl.ratings > div.{cls}", "class")
+        assert below == (value < summary["target"])
     ctx.close()

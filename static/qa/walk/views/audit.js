@@ -19,10 +19,12 @@ export function auditPanel(state, wall, findings) {
   // The same words as the desktop, from the bundle's vocabulary (qa/audit/verdicts.py): "as found" is
   // every finding open, "current" counts only fixes the inspector verified.
   const words = wordsOf(state);
+  const tone = (value) => (value != null && audit.target != null && value < audit.target ? " below" : "");
+  const walked = audit.walked ?? audit.as_found;
   const facts = h("dl", { class: "ratings" },
     h("div", {}, h("dt", {}, words.ratings.designed), h("dd", {}, audit.designed ?? "—")),
-    h("div", { class: "asfound" }, h("dt", {}, words.ratings.as_found), h("dd", {}, audit.walked ?? audit.as_found ?? "—")),
-    h("div", { class: "current" }, h("dt", {}, words.ratings.current), h("dd", {}, audit.as_found ?? "—")),
+    h("div", { class: `asfound${tone(walked)}` }, h("dt", {}, words.ratings.as_found), h("dd", {}, walked ?? "—")),
+    h("div", { class: `current${tone(audit.as_found)}` }, h("dt", {}, words.ratings.current), h("dd", {}, audit.as_found ?? "—")),
     h("div", {}, h("dt", {}, words.ratings.target), h("dd", {}, audit.target ?? "none")));
   const order = (audit.order || []).map((cid, i) => {
     const alone = (audit.rows || []).find((r) => r.finding === cid)?.gain;
