@@ -132,7 +132,10 @@ def test_owner_crew_inspector_flow(size, demo_job, browser, live_server, artifac
     photo.write_bytes(jpeg_bytes())
     item.locator("input[type=file]").set_input_files(str(photo))
     item.locator("textarea").fill("Bead of acoustical sealant along the track, tooled.")
-    item.get_by_role("button", name="Mark fixed").click()
+    # Wait for the form's answer: the live server shares the test's database connection, so the test
+    # must not read the record while the server is still writing it.
+    with page.expect_navigation():
+        item.get_by_role("button", name="Mark fixed").click()
     page.wait_for_load_state()
     assert page.locator(".notice.success").is_visible()
     finding.refresh_from_db()
@@ -147,7 +150,10 @@ def test_owner_crew_inspector_flow(size, demo_job, browser, live_server, artifac
     photo2 = tmp_path / "check.jpg"
     photo2.write_bytes(jpeg_bytes((90, 100, 80)))
     item.locator("input[type=file]").set_input_files(str(photo2))
-    item.get_by_role("button", name="Verify fixed").click()
+    # Wait for the form's answer: the live server shares the test's database connection, so the test
+    # must not read the record while the server is still writing it.
+    with page.expect_navigation():
+        item.get_by_role("button", name="Verify fixed").click()
     page.wait_for_load_state()
     finding.refresh_from_db()
     assert finding.status == "verified"
