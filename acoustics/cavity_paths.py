@@ -43,6 +43,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 import numpy.typing as npt
@@ -122,11 +123,7 @@ class CavityGeometry:
         alpha = 1 - |(Z - 1)/(Z + 1)|^2 (normal incidence); the same form as the wall prediction's
         cavity absorption.
         """
-        if not self.filled:
-            return np.full(_F.size, BARE_ALPHA)
-        kc, zeta, _ = ap.delany_bazley(_F, self.flow_resistivity, rho0=RHO0, c0=C0)
-        z = -1j * zeta / np.tan(kc * self.fill_thickness)
-        return np.maximum(BARE_ALPHA, 1.0 - np.abs((z - 1.0) / (z + 1.0)) ** 2)
+        return _alpha(self)  # one wall's model asks for it once per pair of openings: computed once
 
     def kappa(self) -> Floats:
         """Amplitude attenuation along the cavity per band, Np/m.
@@ -137,18 +134,36 @@ class CavityGeometry:
         bare: kappa = eta k / 2 with the cavity loss factor eta = alpha / (2 k d), i.e. alpha / (4 d).
         The larger of the two.
         """
-        bare = self.alpha() / (4.0 * self.depth)
-        if not self.filled:
-            return bare
-        kc, _, _ = ap.delany_bazley(_F, self.flow_resistivity, rho0=RHO0, c0=C0)
-        frac = min(self.fill_thickness / self.depth, 1.0)
-        kappa: Floats = np.maximum(bare, -kc.imag * frac)
-        return kappa
+        return _kappa(self)
 
     def reverberant(self, same_bay: bool) -> Floats:
         """X_rev = 1 / (2 alpha S_c) per band, 1/m^2 (S_c a bay when ``same_bay`` and bays exist)."""
         s_c = self.bay_width * self.height if (same_bay and self.bay_width) else self.area
         return 1.0 / (2.0 * self.alpha() * s_c)
+
+
+def _frozen(a: Floats) -> Floats:
+    a.setflags(write=False)  # shared by every caller of the cache below
+    return a
+
+
+@lru_cache(maxsize=256)
+def _alpha(geom: CavityGeometry) -> Floats:
+    if not geom.filled:
+        return _frozen(np.full(_F.size, BARE_ALPHA))
+    kc, zeta, _ = ap.delany_bazley(_F, geom.flow_resistivity, rho0=RHO0, c0=C0)
+    z = -1j * zeta / np.tan(kc * geom.fill_thickness)
+    return _frozen(np.maximum(BARE_ALPHA, 1.0 - np.abs((z - 1.0) / (z + 1.0)) ** 2))
+
+
+@lru_cache(maxsize=256)
+def _kappa(geom: CavityGeometry) -> Floats:
+    bare = _alpha(geom) / (4.0 * geom.depth)
+    if not geom.filled:
+        return _frozen(bare)
+    kc, _, _ = ap.delany_bazley(_F, geom.flow_resistivity, rho0=RHO0, c0=C0)
+    frac = min(geom.fill_thickness / geom.depth, 1.0)
+    return _frozen(np.maximum(bare, -kc.imag * frac))
 
 
 @dataclass(frozen=True)

@@ -130,6 +130,13 @@ class WallAudit:
         }
 
 
+def _significant(v: npt.NDArray[np.float64], digits: int) -> npt.NDArray[np.float64]:
+    """``v`` rounded to ``digits`` significant digits, element by element (as ``float(f"{x:.12g}")``)."""
+    mag = np.floor(np.log10(np.abs(np.where(v == 0, 1.0, v))))
+    scale = 10.0 ** (digits - 1 - mag)
+    return np.round(v * scale) / scale
+
+
 def _tl(w: npt.NDArray[np.float64], inv_s: float) -> npt.NDArray[np.float64]:
     return -10.0 * np.log10(w * inv_s)
 
@@ -215,6 +222,7 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
     after_tl = np.empty((n, base.size))
     w = total.copy()
     open_ = np.ones(n, dtype=bool)
+    removes = dw.copy()  # what fixing each finding removes from the current state w
     for step in range(n):
         idx = np.flatnonzero(open_)
         if idx.size == 1:
@@ -222,21 +230,21 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
             order.append(best)
             after[step], after_tl[step] = designed, designed_tl
             break
-        d = lin[idx] + np.einsum("klb,l->kb", cross[idx], open_.astype(float))
+        d = removes[idx]
         cand = np.maximum(w - d, base)
         tls = _tl(cand, inv_s)
         r = rater(tls)
-        pw = d @ weights
         # highest rating, then most weighted power, then lowest id rank. Powers are compared to 12
         # significant digits: two identical findings summed in another order differ in the last bits,
         # and that noise must not decide the order (input order changes nothing).
-        pw_key = np.array([float(f"{v:.12g}") for v in pw])
+        pw_key = _significant(d @ weights, 12)
         pick = np.lexsort((id_rank[idx], -pw_key, -r))[0]
         best = int(idx[pick])
         order.append(best)
         after[step], after_tl[step] = int(r[pick]), tls[pick]
         w = cand[pick]
         open_[best] = False
+        removes -= cross[:, best]  # with ``best`` closed, the paths it joined are gone
 
     needed: list[int] | None = None
     if target is not None:
@@ -288,7 +296,9 @@ def _interactions(
 ) -> list[dict[str, Any]]:
     base, lin, cross = model.base, model.linear, model.cross
     wbase = float(base @ weights)
-    pairs = [kl for kl in model.cross_path if float(cross[kl] @ weights) >= INTERACTION_SHARE * wbase]
+    joined = cross @ weights  # (n, n): each pair's joined power, weighted
+    strong = np.argwhere(np.triu(joined >= INTERACTION_SHARE * wbase, 1))  # (k, l), k < l, in row order
+    pairs = [kl for kl in map(tuple, strong.tolist()) if kl in model.cross_path]
     if not pairs:
         return []
     rows = []

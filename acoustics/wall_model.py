@@ -154,6 +154,7 @@ def _cross(
     flags: set[str] = set()
     if con.leaves != 2:
         return m, how, flags
+    floor = con.leaf_cross()  # the same for every pair
     for k in range(n):
         for l in range(k + 1, n):
             total = np.zeros(N_BANDS)
@@ -169,7 +170,7 @@ def _cross(
                         flags.add("plate_joint_assumed")
                         continue
                     x, kind = pair_coupling(con.cavity, p, q)
-                    total += p.area * q.area * np.maximum(x, con.leaf_cross())
+                    total += p.area * q.area * np.maximum(x, floor)
                     kinds.append(kind)
                     if kind == "reverberant":
                         flags.add("position_unknown")
