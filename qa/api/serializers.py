@@ -16,6 +16,7 @@ from ..choices import Role
 from ..models import Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from ..models.findings import geometry_errors
 from .fields import FiniteFloatField, UnitField
+from .finding_json import finding_json
 
 if TYPE_CHECKING:
     from django.contrib.auth.models import User  # the project keeps Django's user model
@@ -387,6 +388,12 @@ class FindingSerializer(serializers.ModelSerializer):
 
     def get_photos(self, finding) -> list[str]:
         return [str(p.id) for p in finding.photos.all() if not p.removed]
+
+    def to_representation(self, instance):
+        # The same fields DRF would write (held equal by a test), at a tenth of the cost.
+        return finding_json(
+            instance, self.context["job"].units, self.get_photos(instance), instance.created_by.username
+        )
 
     def validate_client_id(self, value):
         if self.instance is not None and value != self.instance.client_id:

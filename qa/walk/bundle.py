@@ -13,12 +13,11 @@ import math
 from typing import Any
 
 from django.core.serializers.json import DjangoJSONEncoder
-from django.db.models import Prefetch
 from django.urls import reverse
 from django.utils import timezone
 
 from .. import audit, units
-from ..api.serializers import FindingSerializer
+from ..api.finding_json import finding_json
 from ..audit.fix_order import fix_steps
 from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
@@ -112,11 +111,8 @@ def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
         for r in summary.get("rows") or []
     ]
     # Which findings this audit counted: the walk marks the ones recorded or changed since as missing.
-    out["includes"] = [
-        client_ids[i]
-        for i in client_ids
-        if i in set(summary.get("views", {}).get("walked", {}).get("order") or summary.get("order") or [])
-    ]
+    counted = set(summary.get("views", {}).get("walked", {}).get("order") or summary.get("order") or [])
+    out["includes"] = [client_ids[i] for i in sorted(counted) if i in client_ids]
     return _plain(out)
 
 
@@ -129,7 +125,7 @@ def _audits(job: Job, walls: list[Wall], member: Member) -> tuple[dict, dict, li
     """
     audits = audit.audits_for_walls(walls)
     verdicts = verdicts_for_walls(walls, audits)
-    rows = Finding.objects.filter(job=job).values_list("id", "client_id", "trade", "status")
+    rows = Finding.objects.filter(job=job).order_by("id").values_list("id", "client_id", "trade", "status")
     client_ids = {k: str(c) for k, c, _t, _s in rows}
     trade_of = {k: t for k, _c, t, _s in rows}
     slim = {str(k): _slim_audit(v, client_ids) for k, v in (audits or {}).items() if isinstance(v, dict)}
@@ -179,14 +175,16 @@ def build_bundle(job: Job, member: Member) -> dict:
     points = SealPoint.objects.filter(wall__job=job, wall__removed=False, removed=False).order_by(
         "wall_id", "position", "id"
     )
-    findings = (
-        Finding.objects.live()
-        .filter(job=job)
-        .select_related("created_by")
-        .prefetch_related(Prefetch("photos", queryset=Photo.objects.only("id", "finding_id", "removed")))
-    )
+    findings = Finding.objects.live().filter(job=job).select_related("created_by")
     if member.is_crew:
         findings = findings.filter(trade=member.trade)
+    photos_of: dict[int, list[str]] = {}
+    for photo_id, finding_id in (
+        Photo.objects.filter(job=job, removed=False, finding__isnull=False)
+        .order_by("uploaded_at", "id")
+        .values_list("id", "finding_id")
+    ):
+        photos_of.setdefault(finding_id, []).append(str(photo_id))
     photos = Photo.objects.filter(job=job, removed=False).only(
         "id",
         "wall_id",
@@ -309,7 +307,7 @@ def build_bundle(job: Job, member: Member) -> dict:
             }
             for p in points
         ],
-        "findings": [dict(d) for d in FindingSerializer(findings, many=True, context={"job": job}).data],
+        "findings": [finding_json(f, u, photos_of.get(f.id, []), f.created_by.username) for f in findings],
         "photos": [
             {
                 "id": str(p.id),
