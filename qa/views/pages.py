@@ -16,6 +16,8 @@ from ..audit.verdicts import coverage_of, face_name, verdicts_for_walls
 from ..audit.verdicts import verdict as verdict_of
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES, Role
+from ..field.prediction import field_for_walls
+from ..field.presentation import FIELD_CAUTION, field_summary
 from ..login_throttle import LoginThrottleMixin
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from . import feedback
@@ -66,8 +68,12 @@ def job_page(request, job_pk):
         params = params.copy()
         params["trade"] = ""
     ctx = job_overview(params, job, walls, audits, findings, verdicts_for_walls(walls, audits))
+    fields = field_for_walls([r["wall"] for r in ctx["rows"]], job.building_kind)
+    for r in ctx["rows"]:  # the predicted field rating now, beside the laboratory-type ratings
+        r["field"] = field_summary(fields[r["wall"].pk])
     ctx.update(
         {
+            "field_caution": FIELD_CAUTION,
             "job": job,
             "member": member,
             "can_fix": can(member, "fix"),

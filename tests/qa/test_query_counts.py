@@ -45,7 +45,8 @@ def test_job_view_queries_do_not_grow(db):
         counts[walls] = (count(c, url), count(c, url))  # cold (every audit computed), then warm
     assert counts[30] == counts[300], counts
     cold, warm = counts[300]
-    assert warm <= 8 and cold <= warm + 3, counts
+    # Cold: the audits' openings and findings, and the field prediction's rooms, junctions and tests.
+    assert warm <= 8 and cold <= warm + 5, counts
 
 
 def test_wall_view_queries_do_not_grow(db):

@@ -75,3 +75,24 @@ def test_test_plan_page_for_every_member_and_404_for_outsiders(world):
 def test_job_page_links_the_test_plan(world):
     html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
     assert f"/jobs/{world.job.id}/test-plan/" in html
+
+
+def test_job_page_shows_each_walls_predicted_field_rating_and_margin(world):
+    """The job view's field column is the same figure the report carries (qa.field.presentation)."""
+    from qa.field.prediction import field_for_walls
+    from qa.field.presentation import FIELD_CAUTION, field_summary
+    from qa.models import Wall
+
+    report_test(world.wall, 40)
+    html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
+    walls = list(Wall.objects.live().filter(job=world.job).select_related("wall_type"))
+    summary = field_summary(field_for_walls(walls, world.job.building_kind)[world.wall.pk])
+    assert summary is not None and summary["now"] is not None
+    row = html.split(f'data-wall-id="{world.wall.id}"', 1)[1].split("</tr>", 1)[0]
+    assert f'data-field-now="{summary["now"]}"' in row
+    assert f'{summary["descriptor"]} {summary["now"]}' in row
+    sign = "+" if summary["margin"] >= 0 else ""
+    assert f'{sign}{summary["margin"]} vs target {summary["target"]}' in row
+    assert 'data-field-measured="40"' in row, "the latest field test beside the prediction"
+    assert "Field, predicted" in html
+    assert FIELD_CAUTION in html, "the usual caution goes with the prediction"
