@@ -90,9 +90,9 @@ def test_job_page_shows_each_walls_predicted_field_rating_and_margin(world):
     assert summary is not None and summary["now"] is not None
     row = html.split(f'data-wall-id="{world.wall.id}"', 1)[1].split("</tr>", 1)[0]
     assert f'data-field-now="{summary["now"]}"' in row
-    assert f'{summary["descriptor"]} {summary["now"]}' in row
+    assert f"{summary['descriptor']} {summary['now']}" in row
     sign = "+" if summary["margin"] >= 0 else ""
-    assert f'{sign}{summary["margin"]} vs target {summary["target"]}' in row
+    assert f"{sign}{summary['margin']} vs target {summary['target']}" in row
     assert 'data-field-measured="40"' in row, "the latest field test beside the prediction"
     assert "Field, predicted" in html
     assert FIELD_CAUTION in html, "the usual caution goes with the prediction"
