@@ -32,6 +32,8 @@ from ..choices import (
     SealStatus,
     Trade,
 )
+from ..field.prediction import field_for_walls
+from ..field.presentation import FIELD_CAUTION, field_summary
 from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from .sync import conflict_data
 
@@ -243,6 +245,12 @@ def build_bundle(job: Job, member: Member) -> dict:
         "cautions": {k: {"title": c.title, "text": c.text, "basis": c.basis} for k, c in CAUTIONS.items()},
         "vocabulary": vocabulary(),
         "verdicts": verdicts,
+        # Each wall's predicted field rating (as designed, as walked, now) and its field target.
+        "field": {
+            str(pk): _plain(field_summary(result))
+            for pk, result in field_for_walls(walls, job.building_kind).items()
+        },
+        "field_caution": FIELD_CAUTION,
         "fix_first": fix_first,
         "general_cautions": list(GENERAL_CAUTIONS),
         "wall_types": [

@@ -46,4 +46,14 @@ def test_walk_audit_panel_uses_the_desktop_words_for_the_same_numbers(live_serve
     for cls, value in (("asfound", summary["walked"]), ("current", summary["as_found"])):
         below = "below" in page.get_attribute(f"[data-audit] dl.ratings > div.{cls}", "class")
         assert below == (value < summary["target"])
+    # The predicted field rating now, as the job view shows it, with the caution that goes with it.
+    from qa.field.prediction import field_for_walls
+    from qa.field.presentation import FIELD_CAUTION, field_summary
+
+    field = field_summary(field_for_walls([world.wall], world.job.building_kind)[world.wall.pk])
+    line = page.locator("[data-audit] .field-line")
+    assert line.get_attribute("data-field-now") == str(field["now"])
+    assert f"{field['descriptor']} {field['now']}" in line.inner_text()
+    assert FIELD_CAUTION in line.inner_text()
+    page.screenshot(path="test-artifacts/walk-audit-field-phone.png", full_page=True)
     ctx.close()

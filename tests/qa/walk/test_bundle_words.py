@@ -97,3 +97,24 @@ def test_crew_job_page_counts_their_trade_only(demo_job):
     for tag, row in rows.items():
         label = next(k for k in row["cells"] if k.startswith("Open"))
         assert int(row["cells"][label][0]) == per_wall.get(tag, 0), tag
+
+
+def test_bundle_and_job_page_show_the_same_field_prediction(demo_job):
+    """The walk's "Field, predicted now" and the job page's column are one figure per wall."""
+    inspector = Member.objects.get(job=demo_job, user__username="inspector")
+    bundle = build_bundle(demo_job, inspector)
+    page = Client()
+    page.force_login(User.objects.get(username="owner"))
+    text = page.get(f"/jobs/{demo_job.pk}/").content.decode()
+    predicted = 0
+    for wall in bundle["walls"]:
+        field = bundle["field"][str(wall["id"])]
+        row = text.split(f'data-wall-id="{wall["id"]}"', 1)[1].split("</tr>", 1)[0]
+        if field is None or field["now"] is None:
+            assert "data-field-now" not in row, wall["tag"]
+            continue
+        predicted += 1
+        assert f'data-field-now="{field["now"]}"' in row, wall["tag"]
+        assert f'data-field-margin="{field["margin"]}"' in row, wall["tag"]
+    assert predicted == len(bundle["walls"]), "the demo's walls all have a field prediction"
+    assert "not a field test" in bundle["field_caution"]

@@ -47,6 +47,7 @@ export function auditPanel(state, wall, findings) {
         : "Last known audit (out of date while offline).") : null,
     audit.error ? h("p", { class: "muted" }, audit.error) : facts,
     audit.shortfall ? h("p", { class: "short" }, `${audit.shortfall} below target as found.`) : null,
+    fieldLine(state, wall),
     order.length ? [h("h3", {}, "Fix first"), h("ol", { class: "fix-first" }, order)] : null,
     missing.length ? h("div", { class: "missing", "data-audit-missing": missing.length },
       h("p", {}, `Not in this audit (${missing.length}):`),
@@ -55,6 +56,19 @@ export function auditPanel(state, wall, findings) {
   // The screen is redrawn after every tick: keep the panel as the user left it.
   panel.addEventListener("toggle", () => (panel.open ? opened.add(wall.id) : opened.delete(wall.id)));
   return panel;
+}
+
+/** The predicted field rating now (flanking and rooms included), its margin and the latest test. */
+function fieldLine(state, wall) {
+  const f = state.bundle && state.bundle.field && state.bundle.field[String(wall.id)];
+  if (!f || f.now == null) return null;
+  const margin = f.margin == null ? null
+    : h("span", { class: `chip ${f.margin < 0 ? "warn" : "ok"}`, "data-field-margin": f.margin },
+      `${f.margin >= 0 ? "+" : ""}${f.margin} vs target ${f.target}${f.target_derived ? " (derived)" : ""}`);
+  return h("div", { class: "field-line", "data-field-now": f.now },
+    h("p", {}, h("strong", {}, "Field, predicted now: "), `${f.descriptor} ${f.now} `, margin,
+      f.measured != null ? h("span", { class: "muted" }, ` · tested ${f.measured}`) : null),
+    h("p", { class: "basis" }, state.bundle.field_caution || ""));
 }
 
 /** The bundle's words for ratings and gains (with the desktop's defaults for an older bundle). */
