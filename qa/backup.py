@@ -45,10 +45,14 @@ from django.core.management.color import no_style
 from django.db import connection, models, transaction
 from django.db.migrations.recorder import MigrationRecorder
 
+from .audit.cache import FIELD, WALL, WALL_TYPE, bump
+
 FORMAT = "sealwalk-job-archive"
 SCHEMA_VERSION = 1
 #: Models of the qa app that are deliberately left out of a job archive, with the reason.
-NOT_EXPORTED: dict[str, str] = {}
+NOT_EXPORTED: dict[str, str] = {
+    "qa.stamp": "cache stamps are derived: a restore gives every restored wall and wall type new ones",
+}
 USER_FIELDS = (
     "id",
     "username",
@@ -431,6 +435,11 @@ def import_job(path: str | Path) -> ImportResult:
                 rows = data["models"].get(model._meta.label_lower, [])
                 model._base_manager.bulk_create([_build(model, row) for row in rows], batch_size=500)
                 counts[model._meta.label_lower] = len(rows)
+            # bulk_create sends no signals: new stamps, so no audit cached before the restore is served.
+            walls = [row["id"] for row in data["models"].get("qa.wall", [])]
+            bump(WALL, walls)
+            bump(FIELD, walls)
+            bump(WALL_TYPE, [row["id"] for row in data["models"].get("qa.walltype", [])])
             for name in sorted(wanted):
                 stored = default_storage.save(name, ContentFile(media[name]))
                 written.append(stored)

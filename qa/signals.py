@@ -2,9 +2,9 @@
 
 A wall's audit depends on its findings, its openings, the wall itself (size, target, scheme) and its
 wall type (curve, layers, thickness). Every save or delete of one of them replaces the matching
-stamp in the shared cache (:func:`qa.audit.invalidate_wall`, :func:`qa.audit.invalidate_wall_type`),
-so the next read recomputes. Queryset ``update()`` and ``bulk_create()`` send no signals: code that
-uses them must call the invalidate functions itself.
+stamp (:mod:`qa.audit.cache`) in the same transaction, so the next read recomputes. Queryset
+``update()`` and ``bulk_create()`` send no signals: code that uses them must call the invalidate
+functions itself.
 """
 
 from __future__ import annotations
@@ -27,26 +27,26 @@ def _remember_wall(sender, instance, **kwargs):
 @receiver(post_save, sender=Finding)
 @receiver(post_delete, sender=Finding)
 def _finding_changed(sender, instance, **kwargs):
-    _later(cache.invalidate_wall, instance.wall_id)
+    _later(cache.WALL, instance.wall_id)
     before = getattr(instance, "_audit_wall_id", None)
     if before and before != instance.wall_id:
-        _later(cache.invalidate_wall, before)
+        _later(cache.WALL, before)
     instance._audit_wall_id = instance.wall_id
 
 
 @receiver(post_save, sender=Opening)
 @receiver(post_delete, sender=Opening)
 def _opening_changed(sender, instance, **kwargs):
-    _later(cache.invalidate_wall, instance.wall_id)
+    _later(cache.WALL, instance.wall_id)
 
 
 @receiver(post_save, sender=Wall)
 @receiver(post_delete, sender=Wall)
 def _wall_changed(sender, instance, **kwargs):
-    _later(cache.invalidate_wall, instance.pk)
+    _later(cache.WALL, instance.pk)
 
 
 @receiver(post_save, sender=WallType)
 @receiver(post_delete, sender=WallType)
 def _wall_type_changed(sender, instance, **kwargs):
-    _later(cache.invalidate_wall_type, instance.pk)
+    _later(cache.WALL_TYPE, instance.pk)

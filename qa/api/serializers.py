@@ -383,7 +383,9 @@ class FindingSerializer(serializers.ModelSerializer):
         super().__init__(*args, **kwargs)
         job = self.context.get("job")
         if job is not None:
-            self.fields["wall"].queryset = Wall.objects.filter(job=job, removed=False)
+            self.fields["wall"].queryset = Wall.objects.filter(job=job, removed=False).select_related(
+                "wall_type"
+            )
             self.fields["seal_point"].queryset = SealPoint.objects.filter(wall__job=job, removed=False)
 
     def get_photos(self, finding) -> list[str]:
@@ -476,7 +478,9 @@ class PhotoSerializer(serializers.ModelSerializer):
         job = self.context.get("job")
         if job is not None:
             self.fields["finding"].queryset = Finding.objects.filter(job=job, removed=False)
-            self.fields["wall"].queryset = Wall.objects.filter(job=job, removed=False)
+            self.fields["wall"].queryset = Wall.objects.filter(job=job, removed=False).select_related(
+                "wall_type"
+            )
 
     def _url(self, photo, kind):
         from django.urls import reverse

@@ -1,89 +1,108 @@
 """Cached leak audits: per-wall stamps, invalidation and the batch lookup.
 
-Audits are cached per wall through Django's cache framework (never in the process): the key carries
-the engine version, a stamp per wall and a stamp per wall type, and :mod:`qa.signals` replaces a
-stamp when any input of the wall changes (findings, openings, the wall, its wall type), which makes
-the old entry unreachable. Cold walls are computed by :func:`qa.audit.summary.compute_summary`.
+Audits are cached through Django's cache framework (never in the process) under a key that carries the
+engine version, the wall's stamp and its wall type's stamp. Stamps are rows of
+:class:`qa.models.Stamp`, replaced by :mod:`qa.signals` in the same transaction as any change to an
+input of the wall (findings, openings, the wall, its wall type): a reader sees the new stamp exactly
+when it sees the new data, a rolled-back change keeps the old stamp, and a batch of changes (a sync)
+replaces each stamp once, in one statement, at its end. Cold walls are computed by
+:func:`qa.audit.summary.compute_summary`.
 """
 
 from __future__ import annotations
 
-import uuid
-from collections.abc import Callable, Iterator
+import secrets
+from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
 from contextvars import ContextVar
 
-from django.core.cache import cache
-from django.db import transaction
+from django.db import connection
+from django.db.models import Q
+
+from ..models import Stamp
 
 #: Bump when the adapter or the engine changes the numbers; old cache entries are then ignored.
 ENGINE_VERSION = "a2"
 AUDIT_TIMEOUT = 60 * 60 * 24 * 30  # s; stamps make stale entries unreachable long before this
 
-_STAMP_W = "sealwalk:audit:stamp:w:{}"
-_STAMP_T = "sealwalk:audit:stamp:t:{}"
+WALL, WALL_TYPE, FIELD = "wall", "type", "field"
+_CHUNK = 400  # rows per statement: well inside SQLite's limit on bound parameters
+
+
+def bump(scope: str, refs: Iterable[int]) -> None:
+    """Replace the stamps of ``refs`` in ``scope`` (one upsert, in id order so writers never deadlock)."""
+    ids = sorted({int(r) for r in refs if r is not None})
+    table = connection.ops.quote_name(Stamp._meta.db_table)
+    for start in range(0, len(ids), _CHUNK):
+        chunk = ids[start : start + _CHUNK]
+        values = ", ".join(["(%s, %s, %s)"] * len(chunk))
+        params = [v for ref in chunk for v in (scope, ref, secrets.randbits(62))]
+        with connection.cursor() as cursor:
+            cursor.execute(
+                f"INSERT INTO {table} (scope, ref, value) VALUES {values} "
+                "ON CONFLICT (scope, ref) DO UPDATE SET value = excluded.value",
+                params,
+            )
+
+
+def stamps(wanted: dict[str, Iterable[int]]) -> dict[tuple[str, int], int]:
+    """{(scope, ref): stamp} for ``{scope: refs}`` in one query; a ref never stamped is left out (0)."""
+    q = Q(pk__in=[])
+    for scope, refs in wanted.items():
+        q |= Q(scope=scope, ref__in=list(refs))
+    return {(s, r): v for s, r, v in Stamp.objects.filter(q).values_list("scope", "ref", "value")}
 
 
 def invalidate_wall(wall_id: int) -> None:
     """Make the cached audit of one wall unreachable (call after any change to its inputs)."""
-    cache.set(_STAMP_W.format(wall_id), uuid.uuid4().hex, None)
+    bump(WALL, [wall_id])
 
 
 def invalidate_wall_type(wall_type_id: int) -> None:
     """Make the cached audits of every wall of one wall type unreachable."""
-    cache.set(_STAMP_T.format(wall_type_id), uuid.uuid4().hex, None)
+    bump(WALL_TYPE, [wall_type_id])
 
 
-def _stamps(keys: list[str]) -> dict[str, str]:
-    found = cache.get_many(keys)
-    missing = [k for k in keys if k not in found]
-    if missing:
-        for k in missing:  # add(): a stamp another process set first wins
-            cache.add(k, uuid.uuid4().hex, None)
-        found.update(cache.get_many(missing))
-    return found
+def audit_stamps(walls: list, **more: Iterable[int]) -> dict[tuple[str, int], int]:
+    """The stamps :func:`audit_keys` needs for ``walls`` (and any ``more`` scopes) in one query."""
+    return stamps({WALL: [w.pk for w in walls], WALL_TYPE: {w.wall_type_id for w in walls}, **more})
 
 
-def audit_keys(walls: list) -> dict[int, str]:
+def audit_keys(walls: list, found: dict[tuple[str, int], int] | None = None) -> dict[int, str]:
     """Current cache key of each wall's audit: engine version, wall stamp and wall type stamp."""
-    wkeys = [_STAMP_W.format(w.pk) for w in walls]
-    tkeys = list(dict.fromkeys(_STAMP_T.format(w.wall_type_id) for w in walls))
-    stamps = _stamps(wkeys + tkeys)
+    if found is None:
+        found = audit_stamps(walls)
     return {
-        w.pk: f"sealwalk:audit:{ENGINE_VERSION}:{w.pk}:{stamps.get(_STAMP_W.format(w.pk), '-')}:"
-        f"{stamps.get(_STAMP_T.format(w.wall_type_id), '-')}"
+        w.pk: f"sealwalk:audit:{ENGINE_VERSION}:{w.pk}:{found.get((WALL, w.pk), 0)}:"
+        f"{found.get((WALL_TYPE, w.wall_type_id), 0)}"
         for w in walls
     }
 
 
-#: Stamps to replace once when a :func:`deferred_invalidation` block ends: {(function, id)}.
-_DEFERRED: ContextVar[set | None] = ContextVar("sealwalk_deferred_invalidation", default=None)
+#: Stamps to replace once when a :func:`deferred_invalidation` block ends: {(scope, ref)}.
+_DEFERRED: ContextVar[set[tuple[str, int]] | None] = ContextVar("sealwalk_deferred", default=None)
 
 
-def _now_and_after_commit(fn: Callable[[int], None], pk: int) -> None:
-    # Invalidate now (readers inside the transaction see the change) and again after commit, so a
-    # reader in another process that refilled the cache between the two sees a fresh stamp.
-    fn(pk)
-    transaction.on_commit(lambda: fn(pk))
-
-
-def invalidate_later(fn: Callable[[int], None], pk: int) -> None:
-    """Invalidate through ``fn`` now and after commit — or once at the end of a deferred block."""
+def invalidate_later(scope: str, ref: int) -> None:
+    """Replace a stamp now — or once, with the others, at the end of a deferred block."""
     deferred = _DEFERRED.get()
     if deferred is None:
-        _now_and_after_commit(fn, pk)
+        bump(scope, [ref])
     else:
-        deferred.add((fn, pk))
+        deferred.add((scope, ref))
 
 
 @contextmanager
 def deferred_invalidation() -> Iterator[None]:
-    """Collect the invalidations of a block (a sync batch) and do each one once when it ends."""
-    deferred: set = set()
+    """Collect the invalidations of a block (a sync batch) and replace each stamp once when it ends.
+
+    Use it inside the block's transaction, so the stamps change with the data they mark.
+    """
+    deferred: set[tuple[str, int]] = set()
     token = _DEFERRED.set(deferred)
     try:
         yield
     finally:
         _DEFERRED.reset(token)
-    for fn, pk in deferred:
-        _now_and_after_commit(fn, pk)
+    for scope in sorted({s for s, _ in deferred}):
+        bump(scope, [r for s, r in deferred if s == scope])

@@ -37,10 +37,9 @@ from acoustics.field import FieldInputError
 from acoustics.field_inputs import PREDICTION_FLAGS
 
 from ..audit import audits_for_walls
-from ..audit.cache import AUDIT_TIMEOUT, audit_keys
+from ..audit.cache import AUDIT_TIMEOUT, FIELD, audit_keys, audit_stamps
 from ..models import FieldTest, JunctionOverride, RoomPair
 from .inputs import CAUTION, field_target, junctions_of, rooms_of, wall_structure
-from .stamps import field_stamps
 
 #: Bump when this adapter changes the numbers; old cache entries are then ignored.
 FIELD_VERSION = "f1"
@@ -188,8 +187,9 @@ def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
     walls = list(walls)
     if not walls:
         return {}
-    akeys = audit_keys(walls)
-    stamps = field_stamps([w.pk for w in walls])
+    found = audit_stamps(walls, **{FIELD: [w.pk for w in walls]})  # one query for every stamp
+    akeys = audit_keys(walls, found)
+    stamps = {w.pk: found.get((FIELD, w.pk), 0) for w in walls}
     keys = {
         w.pk: f"sealwalk:field:{FIELD_VERSION}:{building_kind}:{akeys[w.pk]}:{stamps[w.pk]}" for w in walls
     }

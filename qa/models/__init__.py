@@ -5,6 +5,7 @@ from .field import FieldTest, JunctionOverride, RoomPair
 from .findings import Conflict, Finding, SyncOperation
 from .jobs import Job, Member
 from .photos import Photo
+from .stamps import Stamp
 from .uploads import PhotoUpload
 from .walls import Opening, SealPoint, Wall, WallType
 
@@ -21,6 +22,7 @@ __all__ = [
     "PhotoUpload",
     "RoomPair",
     "SealPoint",
+    "Stamp",
     "SyncOperation",
     "Wall",
     "WallType",

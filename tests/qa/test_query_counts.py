@@ -16,7 +16,7 @@ pytestmark = pytest.mark.slow
 
 @pytest.fixture(autouse=True)
 def big_cache(settings):
-    # One audit entry per wall plus stamps: more than locmem's default 300 entries (see bench notes).
+    # One audit entry per wall: more than locmem's default 300 entries (see bench notes).
     settings.CACHES = {
         "default": {
             "BACKEND": "django.core.cache.backends.locmem.LocMemCache",
@@ -45,8 +45,9 @@ def test_job_view_queries_do_not_grow(db):
         counts[walls] = (count(c, url), count(c, url))  # cold (every audit computed), then warm
     assert counts[30] == counts[300], counts
     cold, warm = counts[300]
-    # Cold: the audits' openings and findings, and the field prediction's rooms, junctions and tests.
-    assert warm <= 8 and cold <= warm + 5, counts
+    # Warm: the stamps are rows (one query per lookup). Cold adds the audits' openings and findings, the
+    # field prediction's rooms, junctions and tests, and its look-up of the audits it builds on.
+    assert warm <= 8 and cold <= warm + 6, counts
 
 
 def test_wall_view_queries_do_not_grow(db):

@@ -357,11 +357,28 @@ def test_fixed_counts_as_reported_not_as_verified(world):
     assert s["as_found"] == s["designed"] and s["walked"] < s["designed"] and s["rows"] == []
 
 
-def test_warm_audit_needs_no_query(world, django_assert_num_queries):
+def test_warm_audit_needs_one_query_for_its_stamps(world, django_assert_num_queries):
     add(world)
     summary.audit_summary(world.wall)
-    with django_assert_num_queries(0):
+    with django_assert_num_queries(
+        1
+    ):  # the stamps (a database row, changed with the data); the audit is cached
         summary.audit_summary(world.wall)
+
+
+def test_stamp_changes_with_the_data_and_rolls_back_with_it(world):
+    """A change inside a transaction that fails leaves the old stamp, so the old audit stays current."""
+    from django.db import transaction
+
+    from qa.audit.cache import audit_keys
+
+    add(world)
+    key = audit_keys([world.wall])[world.wall.pk]
+    with pytest.raises(RuntimeError), transaction.atomic():
+        add(world)
+        assert audit_keys([world.wall])[world.wall.pk] != key, "the writer sees its own change"
+        raise RuntimeError
+    assert audit_keys([world.wall])[world.wall.pk] == key
 
 
 def test_wall_without_curve_reports_an_error_not_a_crash(world):
