@@ -229,7 +229,7 @@ UPLOAD_ABANDONED_AFTER_HOURS = env_int("UPLOAD_ABANDONED_AFTER_HOURS", 72, minim
 
 CACHES = {
     "default": {
-        "BACKEND": "django.core.cache.backends.db.DatabaseCache",
+        "BACKEND": "qa.cache_backend.DatabaseCache",
         "LOCATION": "sealwalk_cache",
         # One leak audit per wall plus its stamps: a 300-wall job must not evict itself.
         "OPTIONS": {"MAX_ENTRIES": 100_000},

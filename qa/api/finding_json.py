@@ -27,6 +27,20 @@ LATER = ("along_from", "height_band", "trade", "note", "status", "fix_note", "ve
 MOMENTS = ("created_at", "updated_at", "device_time", "fixed_at", "verified_at")
 
 
+#: The model columns :func:`finding_json` reads (for a ``values()`` query that skips model instances).
+FINDING_COLUMNS = (
+    "id",
+    "client_id",
+    "wall_id",
+    "seal_point_id",
+    *PLAIN,
+    *(field for _name, field, _q in SIZES),
+    "along_m",
+    *LATER,
+    *MOMENTS,
+)
+
+
 def moment(value: datetime | None) -> str | None:
     """DRF's ISO 8601 form of an aware moment: in the current time zone, UTC written as ``Z``."""
     if value is None:

@@ -10,14 +10,16 @@ from __future__ import annotations
 import hashlib
 import json
 import math
+from types import SimpleNamespace
 from typing import Any
 
 from django.core.serializers.json import DjangoJSONEncoder
+from django.db.models import F
 from django.urls import reverse
 from django.utils import timezone
 
 from .. import audit, units
-from ..api.finding_json import finding_json
+from ..api.finding_json import FINDING_COLUMNS, finding_json
 from ..audit.fix_order import fix_steps
 from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
@@ -59,7 +61,26 @@ def _plain(value: Any) -> Any:
     return value
 
 
-def prefill(point: SealPoint, wall: Wall, job_units: str) -> dict:
+#: The seal-point columns the bundle reads (rows, not model instances).
+POINT_COLUMNS = (
+    "id",
+    "wall_id",
+    "label",
+    "face",
+    "trade",
+    "correct",
+    "usual_defect",
+    "caution",
+    "status",
+    "version",
+    "position",
+    "gap",
+    "gap_kind",
+    "at_edge",
+)
+
+
+def prefill(point: SealPoint | SimpleNamespace, wall: Wall, job_units: str) -> dict:
     """A seal point's default defect geometry in the job's units (slit length from ``length_fraction``)."""
     gap = dict(point.gap or {})
     if "length_fraction" in gap and "length_m" not in gap:
@@ -174,10 +195,16 @@ def build_bundle(job: Job, member: Member) -> dict:
     u = job.units
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
     wall_by_id = {w.id: w for w in walls}
-    points = SealPoint.objects.filter(wall__job=job, wall__removed=False, removed=False).order_by(
-        "wall_id", "position", "id"
+    points = [
+        SimpleNamespace(**row)
+        for row in SealPoint.objects.filter(wall__job=job, wall__removed=False, removed=False)
+        .order_by("wall_id", "position", "id")
+        .values(*POINT_COLUMNS)
+    ]
+    # Rows, not model instances: a job holds thousands of findings and the walk asks for all of them.
+    findings = (
+        Finding.objects.live().filter(job=job).values(*FINDING_COLUMNS, author=F("created_by__username"))
     )
-    findings = Finding.objects.live().filter(job=job).select_related("created_by")
     if member.is_crew:
         findings = findings.filter(trade=member.trade)
     photos_of: dict[int, list[str]] = {}
@@ -315,7 +342,9 @@ def build_bundle(job: Job, member: Member) -> dict:
             }
             for p in points
         ],
-        "findings": [finding_json(f, u, photos_of.get(f.id, []), f.created_by.username) for f in findings],
+        "findings": [
+            finding_json(SimpleNamespace(**f), u, photos_of.get(f["id"], []), f["author"]) for f in findings
+        ],
         "photos": [
             {
                 "id": str(p.id),

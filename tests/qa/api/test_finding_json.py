@@ -114,3 +114,16 @@ def test_equal_to_drf_in_another_time_zone(world):
     with timezone.override("America/Halifax"):
         for f in made:
             assert FindingSerializer(f, context={"job": world.job}).data == drf_form(f, world.job)
+
+
+def test_bundle_findings_equal_the_api_form(world):
+    """The walk's bundle writes findings from database rows; each equals the API's form of it."""
+    from qa.models import Member
+    from qa.walk.bundle import build_bundle
+
+    made, _photo = findings(world)
+    member = Member.objects.get(job=world.job, user=world.inspector)
+    bundled = {f["id"]: f for f in build_bundle(world.job, member)["findings"]}
+    assert set(bundled) == {f.pk for f in made}
+    for f in Finding.objects.filter(pk__in=bundled).select_related("created_by"):
+        assert json.dumps(bundled[f.pk]) == json.dumps(drf_form(f, world.job)), f.kind
