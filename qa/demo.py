@@ -261,7 +261,11 @@ def load_demo(photos: bool = True) -> tuple[Job, bool]:
         rating_scheme="stc",
         rule_set="Project specification (demo): STC 50 between units and at "
         "the lift shaft; STC 45 composite for corridor walls "
-        "with their entry doors",
+        "with their entry doors; field tests ASTC 45 between units, ASTC 40 at corridors",
+        field_targets=[
+            {"wall_type": None, "descriptor": "astc", "value": 45},
+            {"wall_type": "W3", "descriptor": "astc", "value": 40},
+        ],
     )
     for username, _first, _last, role, trade in PEOPLE:
         Member.objects.create(job=job, user=users[username], role=role, trade=trade)

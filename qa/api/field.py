@@ -153,3 +153,29 @@ class BuildingKindViewSet(JobScopedMixin, viewsets.GenericViewSet):
         self.job.save(update_fields=["building_kind", "updated_at"])
         self.record("job.building_kind", self.job, {"building_kind": self.job.building_kind})
         return Response({"building_kind": self.job.building_kind})
+
+
+class FieldTargetsViewSet(JobScopedMixin, viewsets.GenericViewSet):
+    """GET or PUT the job's field targets per kind of wall (the rule set's field side)."""
+
+    serializer_class = fs.FieldTargetsSerializer
+    queryset = Wall.objects.none()
+
+    def right_needed(self) -> str:
+        return "view" if self.request.method in ("GET", "HEAD", "OPTIONS") else "edit"
+
+    @extend_schema(responses={200: fs.FieldTargetsSerializer}, tags=["field rating"])
+    def retrieve(self, request, *args, **kwargs):
+        return Response({"field_targets": self.job.field_targets})
+
+    @extend_schema(responses={200: fs.FieldTargetsSerializer}, tags=["field rating"])
+    @transaction.atomic
+    def update(self, request, *args, **kwargs):
+        serializer = self.get_serializer(
+            data=request.data, context={**self.get_serializer_context(), "job": self.job}
+        )
+        serializer.is_valid(raise_exception=True)
+        self.job.field_targets = serializer.validated_data["field_targets"]
+        self.job.save(update_fields=["field_targets", "updated_at"])
+        self.record("job.field_targets", self.job, {"field_targets": self.job.field_targets})
+        return Response({"field_targets": self.job.field_targets})

@@ -12,10 +12,10 @@ from rest_framework import serializers
 from acoustics.building_kinds import predict_wall
 from acoustics.field import FieldInputError
 
-from ..field.choices import BuildingKind, TestStandard
+from ..field.choices import BuildingKind, FieldDescriptor, TestStandard
 from ..field.inputs import MAX_VOLUME_M3, check_rooms, junctions_of, rooms_of, wall_structure
 from ..field.measurements import clean_bands, compute_results, parse_csv
-from ..models import FieldTest, JunctionOverride, RoomPair
+from ..models import FieldTest, JunctionOverride, RoomPair, WallType
 from .fields import FiniteFloatField
 
 
@@ -93,6 +93,47 @@ class JunctionOverrideSerializer(serializers.ModelSerializer):
 
 class BuildingKindSerializer(serializers.Serializer):
     building_kind = serializers.ChoiceField(choices=BuildingKind.choices)
+
+
+class FieldTargetSerializer(serializers.Serializer):
+    """One rule of the job's rule set: a field target for a kind of wall (a wall type, or every wall)."""
+
+    wall_type = serializers.CharField(
+        max_length=20,
+        allow_null=True,
+        required=False,
+        default=None,
+        help_text="Wall type code; null: every wall",
+    )
+    descriptor = serializers.ChoiceField(choices=FieldDescriptor.choices)
+    value = serializers.IntegerField(min_value=10, max_value=100)
+
+
+class FieldTargetsSerializer(serializers.Serializer):
+    """The job's field targets; a wall is judged against the rule for its wall type, else the rule
+    for every wall, unless its rooms have their own target."""
+
+    field_targets = FieldTargetSerializer(many=True, max_length=100)  # type: ignore[call-arg]  # ListSerializer
+
+    def validate_field_targets(self, rules: list[dict]) -> list[dict]:
+        codes = set(WallType.objects.filter(job=self.context["job"]).values_list("code", flat=True))
+        seen: set[str | None] = set()
+        for i, rule in enumerate(rules):
+            code = rule.get("wall_type") or None
+            if code is not None and code not in codes:
+                raise serializers.ValidationError(
+                    f"item {i}: wall_type {code!r} is not a wall type of this job"
+                )
+            if code in seen:
+                kind = "every wall" if code is None else f"wall type {code}"
+                raise serializers.ValidationError(
+                    f"item {i}: a second target for {kind}; one target per kind of wall"
+                )
+            seen.add(code)
+        return [
+            {"wall_type": r.get("wall_type") or None, "descriptor": r["descriptor"], "value": r["value"]}
+            for r in rules
+        ]
 
 
 class FieldTestSerializer(serializers.ModelSerializer):

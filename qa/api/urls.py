@@ -49,6 +49,11 @@ urlpatterns = [
         field.BuildingKindViewSet.as_view({"get": "retrieve", "put": "update"}),
         name="building-kind",
     ),
+    path(
+        "jobs/<id:job_pk>/field-targets/",
+        field.FieldTargetsViewSet.as_view({"get": "retrieve", "put": "update"}),
+        name="field-targets",
+    ),
     path("auth/token/", auth.ObtainToken.as_view(), name="token"),
     path("auth/token/revoke/", auth.RevokeToken.as_view(), name="token-revoke"),
     path("schema/", docs.schema_view, name="schema"),

@@ -113,8 +113,18 @@ def junctions_of(overrides: Iterable, building_kind: str) -> dict[str, Junction]
     return out
 
 
-def field_target(wall, pair=None) -> dict[str, Any] | None:
-    """The field target of a room pair: entered, or derived from an STC target (module References).
+def job_rule(rules: Iterable[dict[str, Any]], wall) -> dict[str, Any] | None:
+    """The job's field target for ``wall``: the rule for its wall type, else the rule for every wall."""
+    rules = list(rules or ())
+    code = wall.wall_type.code
+    return next((r for r in rules if r.get("wall_type") == code), None) or next(
+        (r for r in rules if not r.get("wall_type")), None
+    )
+
+
+def field_target(wall, pair=None, rules: Iterable[dict[str, Any]] = ()) -> dict[str, Any] | None:
+    """The field target of a room pair: entered for the pair, else the job's rule set for the kind of
+    wall (:attr:`qa.models.Job.field_targets`), else derived from an STC target (module References).
 
     Returns {"descriptor", "value", "derived", "basis"} or None when none can be set like for like.
     """
@@ -123,7 +133,16 @@ def field_target(wall, pair=None) -> dict[str, Any] | None:
             "descriptor": pair.field_descriptor,
             "value": pair.field_target,
             "derived": False,
-            "basis": "",
+            "basis": "entered for these rooms",
+        }
+    rule = job_rule(rules, wall)
+    if rule is not None:
+        applies = f"wall type {rule['wall_type']}" if rule.get("wall_type") else "every wall"
+        return {
+            "descriptor": rule["descriptor"],
+            "value": int(rule["value"]),
+            "derived": False,
+            "basis": f"the job's rule set, for {applies}",
         }
     if wall.target_rating is not None and (wall.rating_scheme or "stc") == "stc":
         return {
@@ -132,7 +151,7 @@ def field_target(wall, pair=None) -> dict[str, Any] | None:
             "derived": True,
             "basis": f"STC {wall.target_rating} target less {STC_FIELD_ALLOWANCE} for a field result "
             "(the building code's allowance for field-tested walls); set the rooms' field target "
-            "to replace it",
+            "or the job's field targets to replace it",
         }
     return None
 

@@ -71,7 +71,7 @@ def _row(wall, result: dict, audit: dict, counts: dict, tested: set) -> dict[str
 def job_walls(job) -> tuple[list, dict[int, dict]]:
     """The job's live walls (wall types loaded) and their cached field predictions."""
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type").order_by("level", "tag"))
-    return walls, field_for_walls(walls, job.building_kind)
+    return walls, field_for_walls(walls, job)
 
 
 def job_test_plan(job, walls_fields: tuple[list, dict] | None = None) -> dict[str, Any]:

@@ -25,6 +25,8 @@ References
 
 from __future__ import annotations
 
+import hashlib
+import json
 import math
 from collections.abc import Iterable
 from typing import Any
@@ -42,7 +44,7 @@ from ..models import FieldTest, JunctionOverride, RoomPair
 from .inputs import CAUTION, field_target, junctions_of, rooms_of, wall_structure
 
 #: Bump when this adapter changes the numbers; old cache entries are then ignored.
-FIELD_VERSION = "f1"
+FIELD_VERSION = "f2"
 STATES = ("designed", "walked", "now")
 FLAG_TEXT = {
     **PREDICTION_FLAGS,
@@ -87,7 +89,9 @@ def _routes(share: dict[str, Any]) -> dict[str, Any]:
     return {k: round(v, 3) for k, v in out.items()}
 
 
-def predict_pair(wall, curves: np.ndarray, rooms, junctions: dict, building_kind: str, pair=None) -> dict:
+def predict_pair(
+    wall, curves: np.ndarray, rooms, junctions: dict, building_kind: str, pair=None, rules: tuple = ()
+) -> dict:
     """The field prediction of one room pair of ``wall`` (uncached), JSON-ready."""
     area = rooms.area if rooms.area is not None else wall.length_m * wall.height_m
     leaks, clipped = state_leaks(curves, area)
@@ -103,7 +107,7 @@ def predict_pair(wall, curves: np.ndarray, rooms, junctions: dict, building_kind
         leaks=leaks,
         **wall_structure(wall),
     )
-    target = field_target(wall, pair)
+    target = field_target(wall, pair, rules)
     states = {}
     for i, name in enumerate(STATES):
         d = p.as_dict(i)
@@ -129,8 +133,12 @@ def predict_pair(wall, curves: np.ndarray, rooms, junctions: dict, building_kind
     }
 
 
-def compute_field(wall, summary: dict, pairs: list, overrides: list, building_kind: str) -> dict:
-    """The field prediction of ``wall`` for each room pair (one default pair if none), uncached."""
+def compute_field(
+    wall, summary: dict, pairs: list, overrides: list, building_kind: str, rules: tuple = ()
+) -> dict:
+    """The field prediction of ``wall`` for each room pair (one default pair if none), uncached.
+
+    ``rules`` are the job's field targets (:attr:`qa.models.Job.field_targets`)."""
     out: dict[str, Any] = {
         "v": FIELD_VERSION,
         "wall": wall.pk,
@@ -147,7 +155,7 @@ def compute_field(wall, summary: dict, pairs: list, overrides: list, building_ki
         junctions = junctions_of(overrides, building_kind)
         for pair in pairs or [None]:
             out["pairs"].append(
-                predict_pair(wall, curves, rooms_of(wall, pair), junctions, building_kind, pair)
+                predict_pair(wall, curves, rooms_of(wall, pair), junctions, building_kind, pair, rules)
             )
     except FieldInputError as exc:
         out["error"] = f"{exc.field}: {exc.rule}"
@@ -178,8 +186,16 @@ def entry_of_test(t) -> dict[str, Any]:
     }
 
 
-def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
-    """Cached field predictions of ``walls`` of one job (wall types loaded): {wall id: result}.
+def rules_digest(rules: Iterable[dict]) -> str:
+    """A short digest of a job's field targets, part of every prediction's cache key."""
+    text = json.dumps(list(rules or ()), sort_keys=True, separators=(",", ":"))
+    return hashlib.sha256(text.encode()).hexdigest()[:12]
+
+
+def field_for_walls(walls: Iterable, job) -> dict[int, dict]:
+    """Cached field predictions of ``walls`` of ``job`` (wall types loaded): {wall id: result}.
+
+    The job gives the building kind (default junctions) and the rule set's field targets.
 
     Each result also lists the wall's field tests (``tests``). Warm: cache reads only. Cold walls:
     three queries (rooms, junctions, tests) plus the audits' own, whatever their number.
@@ -187,12 +203,12 @@ def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
     walls = list(walls)
     if not walls:
         return {}
+    building_kind, rules = job.building_kind, tuple(job.field_targets or ())
     found = audit_stamps(walls, **{FIELD: [w.pk for w in walls]})  # one query for every stamp
     akeys = audit_keys(walls, found)
     stamps = {w.pk: found.get((FIELD, w.pk), 0) for w in walls}
-    keys = {
-        w.pk: f"sealwalk:field:{FIELD_VERSION}:{building_kind}:{akeys[w.pk]}:{stamps[w.pk]}" for w in walls
-    }
+    base = f"sealwalk:field:{FIELD_VERSION}:{building_kind}:{rules_digest(rules)}"
+    keys = {w.pk: f"{base}:{akeys[w.pk]}:{stamps[w.pk]}" for w in walls}
     hit = cache.get_many(list(keys.values()))
     out = {pk: hit[key] for pk, key in keys.items() if key in hit}
     cold = [w for w in walls if w.pk not in out]
@@ -210,7 +226,7 @@ def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
         audits = audits_for_walls(cold)
         fresh = {}
         for w in cold:
-            res = compute_field(w, audits[w.pk], pairs[w.pk], overrides[w.pk], building_kind)
+            res = compute_field(w, audits[w.pk], pairs[w.pk], overrides[w.pk], building_kind, rules)
             res["tests"] = tests[w.pk]
             fresh[keys[w.pk]] = out[w.pk] = res
         cache.set_many(fresh, AUDIT_TIMEOUT)
@@ -219,7 +235,7 @@ def field_for_walls(walls: Iterable, building_kind: str) -> dict[int, dict]:
 
 def field_prediction(wall) -> dict:
     """The cached field prediction of one wall (its job's building kind)."""
-    return field_for_walls([wall], wall.job.building_kind)[wall.pk]
+    return field_for_walls([wall], wall.job)[wall.pk]
 
 
 def rounded(value: Any) -> Any:

@@ -213,6 +213,21 @@ FIELD_CAUTION = (
 )
 
 
+def field_target_rows(rules: list[dict] | None) -> list[dict[str, Any]]:
+    """The job's field targets for a page: wall types first, the rule for every other wall last."""
+    rows = [
+        {
+            "applies": f"wall type {r['wall_type']}" if r.get("wall_type") else "every other wall",
+            "descriptor": DESCRIPTOR_NAMES.get(r["descriptor"], r["descriptor"]),
+            "value": r["value"],
+        }
+        for r in sorted(rules or [], key=lambda r: (not r.get("wall_type"), r.get("wall_type") or ""))
+    ]
+    if len(rows) == 1 and rows[0]["applies"] == "every other wall":
+        rows[0]["applies"] = "every wall"
+    return rows
+
+
 def field_summary(result: dict) -> dict[str, Any] | None:
     """One wall's field rating for the report and the CSV: the deciding room pair's descriptor, its
     target, the prediction as designed / as walked / now with the margin now, and the latest measured

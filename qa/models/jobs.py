@@ -38,6 +38,13 @@ class Job(models.Model):
         db_default=BuildingKind.WOOD_FRAME.value,  # rows written by other tools (imports, raw SQL) too
         help_text="Sets the default floors, ceilings and side walls of the field prediction.",
     )
+    field_targets = models.JSONField(
+        default=list,
+        db_default=models.Value([], output_field=models.JSONField()),  # rows written by other tools too
+        blank=True,
+        help_text="The rule set's field targets per kind of wall: [{wall_type: code or null for every "
+        "other wall, descriptor: astc | nnic | r_prime_w | dnt_w, value}] (qa.field.inputs.field_target).",
+    )
     created_at = models.DateTimeField(auto_now_add=True)
     updated_at = models.DateTimeField(auto_now=True)
 

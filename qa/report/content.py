@@ -93,7 +93,7 @@ def report_content(job) -> dict:
     u = job.units
     steps = {w.pk: fix_steps(audits[w.pk]) for w in walls}
     verdicts = verdicts_for_walls(walls, audits)
-    fields = field_for_walls(walls, job.building_kind)
+    fields = field_for_walls(walls, job)
     wall_rows = []
     for w in walls:
         a = audits[w.pk]

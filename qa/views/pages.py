@@ -17,7 +17,7 @@ from ..audit.verdicts import verdict as verdict_of
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES, Role
 from ..field.prediction import field_for_walls
-from ..field.presentation import FIELD_CAUTION, field_summary
+from ..field.presentation import FIELD_CAUTION, field_summary, field_target_rows
 from ..login_throttle import LoginThrottleMixin
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from . import feedback
@@ -68,12 +68,13 @@ def job_page(request, job_pk):
         params = params.copy()
         params["trade"] = ""
     ctx = job_overview(params, job, walls, audits, findings, verdicts_for_walls(walls, audits))
-    fields = field_for_walls([r["wall"] for r in ctx["rows"]], job.building_kind)
+    fields = field_for_walls([r["wall"] for r in ctx["rows"]], job)
     for r in ctx["rows"]:  # the predicted field rating now, beside the laboratory-type ratings
         r["field"] = field_summary(fields[r["wall"].pk])
     ctx.update(
         {
             "field_caution": FIELD_CAUTION,
+            "field_targets": field_target_rows(job.field_targets),
             "job": job,
             "member": member,
             "can_fix": can(member, "fix"),

@@ -274,8 +274,7 @@ def build_bundle(job: Job, member: Member) -> dict:
         "verdicts": verdicts,
         # Each wall's predicted field rating (as designed, as walked, now) and its field target.
         "field": {
-            str(pk): _plain(field_summary(result))
-            for pk, result in field_for_walls(walls, job.building_kind).items()
+            str(pk): _plain(field_summary(result)) for pk, result in field_for_walls(walls, job).items()
         },
         "field_caution": FIELD_CAUTION,
         "fix_first": fix_first,

@@ -53,20 +53,20 @@ def main() -> None:
             cache.clear()
             audits_for_walls(walls)  # audits warm: time the field prediction alone
             t = time.perf_counter()
-            field_for_walls(walls, job.building_kind)
+            field_for_walls(walls, job)
             return time.perf_counter() - t
 
         def all_cold():
             cache.clear()
-            field_for_walls(walls, job.building_kind)
+            field_for_walls(walls, job)
 
         def warm():
-            field_for_walls(walls, job.building_kind)
+            field_for_walls(walls, job)
 
         def page():
             assert client.get(f"/jobs/{job.pk}/test-plan/").status_code == 200
 
-        field_for_walls(walls, job.building_kind)
+        field_for_walls(walls, job)
         only = sorted(field_only_cold() * 1000 for _ in range(5))[2]
         figures = [
             ("field only, audits warm", only, 1500.0),

@@ -50,7 +50,7 @@ def test_walk_audit_panel_uses_the_desktop_words_for_the_same_numbers(live_serve
     from qa.field.prediction import field_for_walls
     from qa.field.presentation import FIELD_CAUTION, field_summary
 
-    field = field_summary(field_for_walls([world.wall], world.job.building_kind)[world.wall.pk])
+    field = field_summary(field_for_walls([world.wall], world.job)[world.wall.pk])
     line = page.locator("[data-audit] .field-line")
     assert line.get_attribute("data-field-now") == str(field["now"])
     assert f"{field['descriptor']} {field['now']}" in line.inner_text()

@@ -435,6 +435,10 @@ TABLE: dict[str, dict[str, Rule]] = {
     "api:test-plan": {"GET": R("view")},
     "api:test-plan-csv": {"GET": R("view")},
     "api:building-kind": {"GET": R("view"), "PUT": R("edit", body=lambda s: {"building_kind": "clt"})},
+    "api:field-targets": {
+        "GET": R("view"),
+        "PUT": R("edit", body=lambda s: {"field_targets": [{"descriptor": "astc", "value": 45}]}),
+    },
     "api:roompair-list": {
         "GET": R("view"),
         "POST": R("edit", ok=201, body=lambda s: {"receiving_volume_m3": 40.0}),

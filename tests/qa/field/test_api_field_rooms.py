@@ -1,7 +1,7 @@
 """Rooms, junctions, building kind, field prediction and test plan APIs: the ladder of STYLE.md.
 
 /api/jobs/{job}/walls/{wall}/rooms/, .../junctions/, .../field-prediction/, /api/jobs/{job}/test-plan/
-(and test-plan.csv), /api/jobs/{job}/building-kind/.
+(and test-plan.csv), /api/jobs/{job}/building-kind/, /api/jobs/{job}/field-targets/.
 """
 
 from __future__ import annotations
@@ -128,6 +128,44 @@ def test_building_kind_read_by_all_set_by_the_inspector(world, api):
         api(world.inspector).get(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/field-prediction/").json()
     )
     assert pred["building_kind"] == "clt"
+
+
+def test_field_targets_read_by_all_set_by_the_inspector_and_used(world, api):
+    path = f"/api/jobs/{world.job.id}/field-targets/"
+    pred_path = f"/api/jobs/{world.job.id}/walls/{world.wall.id}/field-prediction/"
+    assert api(world.owner).get(path).json() == {"field_targets": []}
+    rules = {"field_targets": [{"wall_type": world.wall_type.code, "descriptor": "dnt_w", "value": 50}]}
+    assert api(world.owner).put(path, rules, format="json").status_code == 403
+    assert api(world.inspector).get(pred_path).json()["pairs"][0]["target"]["derived"] is True
+    r = api(world.inspector).put(path, rules, format="json")
+    assert r.status_code == 200 and r.json() == {"field_targets": rules["field_targets"]}
+    target = api(world.inspector).get(pred_path).json()["pairs"][0]["target"]
+    assert (target["descriptor"], target["value"], target["derived"]) == ("dnt_w", 50, False)
+    assert Event.objects.filter(verb="job.field_targets").count() == 1
+
+
+@pytest.mark.parametrize(
+    "rules, rule",
+    [
+        ([{"wall_type": "ZZ", "descriptor": "astc", "value": 45}], "is not a wall type of this job"),
+        (
+            [{"descriptor": "astc", "value": 45}, {"descriptor": "nnic", "value": 45}],
+            "one target per kind of wall",
+        ),
+        ([{"descriptor": "stc", "value": 45}], "not a valid choice"),
+        ([{"descriptor": "astc", "value": 400}], "less than or equal to 100"),
+        ([{"descriptor": "astc"}], "required"),
+        ("astc 45", "Expected a list"),
+        ([{"descriptor": "astc", "value": 45}] * 101, "no more than 100 elements"),
+    ],
+)
+def test_bad_field_targets_are_400s_naming_the_field_and_nothing_is_stored(world, api, rules, rule):
+    path = f"/api/jobs/{world.job.id}/field-targets/"
+    r = api(world.inspector).put(path, {"field_targets": rules}, format="json")
+    assert r.status_code == 400 and "field_targets" in r.json(), r.json()
+    assert rule in str(r.json()["field_targets"])
+    world.job.refresh_from_db()
+    assert world.job.field_targets == []
 
 
 def test_test_plan_ranks_by_margin_then_by_the_walk(world, api):

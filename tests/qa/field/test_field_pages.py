@@ -86,7 +86,7 @@ def test_job_page_shows_each_walls_predicted_field_rating_and_margin(world):
     report_test(world.wall, 40)
     html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
     walls = list(Wall.objects.live().filter(job=world.job).select_related("wall_type"))
-    summary = field_summary(field_for_walls(walls, world.job.building_kind)[world.wall.pk])
+    summary = field_summary(field_for_walls(walls, world.job)[world.wall.pk])
     assert summary is not None and summary["now"] is not None
     row = html.split(f'data-wall-id="{world.wall.id}"', 1)[1].split("</tr>", 1)[0]
     assert f'data-field-now="{summary["now"]}"' in row
@@ -96,3 +96,16 @@ def test_job_page_shows_each_walls_predicted_field_rating_and_margin(world):
     assert 'data-field-measured="40"' in row, "the latest field test beside the prediction"
     assert "Field, predicted" in html
     assert FIELD_CAUTION in html, "the usual caution goes with the prediction"
+
+
+def test_job_page_lists_the_rule_sets_field_targets(world):
+    html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
+    assert "Field targets:</strong> none set" in html
+    world.job.field_targets = [
+        {"wall_type": None, "descriptor": "astc", "value": 45},
+        {"wall_type": world.wall_type.code, "descriptor": "dnt_w", "value": 50},
+    ]
+    world.job.save()
+    html = client_for(world.owner).get(f"/jobs/{world.job.id}/").content.decode()
+    line = html.split("data-field-targets>", 1)[1].split("</p>", 1)[0]
+    assert f"wall type {world.wall_type.code} DnT,w 50 · every other wall ASTC 45" in line

@@ -136,11 +136,36 @@ def test_field_target_derived_from_stc_and_entered(world):
         "descriptor": "nnic",
         "value": 50,
         "derived": False,
-        "basis": "",
+        "basis": "entered for these rooms",
     }
     res = field_prediction(world.wall)
     head = headline(res)
     assert head["states"]["now"]["margin"] == head["states"]["now"]["astc"] - 45
+
+
+def test_job_rule_set_targets_per_kind_of_wall(world):
+    """Precedence: the rooms' own target, then the job's rule for the wall type, then its rule for every
+    wall, then the derived one; a change of the job's targets reaches the cached prediction."""
+    rules = [
+        {"wall_type": None, "descriptor": "dnt_w", "value": 48},
+        {"wall_type": world.wall_type.code, "descriptor": "astc", "value": 47},
+    ]
+    t = field_target(world.wall, None, rules)
+    assert (t["descriptor"], t["value"], t["derived"]) == ("astc", 47, False)
+    assert "wall type" in t["basis"]
+    t = field_target(world.wall, None, rules[:1])
+    assert (t["descriptor"], t["value"]) == ("dnt_w", 48) and "every wall" in t["basis"]
+    pair = RoomPair(wall=world.wall, field_target=50, field_descriptor="nnic")
+    assert field_target(world.wall, pair, rules)["descriptor"] == "nnic"
+
+    before = headline(field_prediction(world.wall))["target"]
+    assert before["derived"]
+    world.job.field_targets = rules[:1]
+    world.job.save()
+    world.wall.refresh_from_db()
+    head = headline(field_prediction(world.wall))
+    assert head["target"]["descriptor"] == "dnt_w" and head["target"]["value"] == 48
+    assert head["states"]["now"]["margin"] == head["states"]["now"]["dnt_w"]["value"] - 48
 
 
 def test_missing_band_is_an_error_not_a_number(world):
