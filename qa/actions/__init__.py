@@ -13,18 +13,21 @@ from __future__ import annotations
 
 from .conflicts import keep_conflict, resolve_conflict
 from .context import Actor, Reject, Stale
+from .field_tests import add_field_test, remove_field_test
 from .findings import create_finding, edit_finding, finding_step, remove_finding
 from .photos import store_photo
 from .seal_points import tick_seal_point
 
 __all__ = [
     "Actor",
+    "add_field_test",
     "Reject",
     "Stale",
     "create_finding",
     "edit_finding",
     "finding_step",
     "keep_conflict",
+    "remove_field_test",
     "remove_finding",
     "resolve_conflict",
     "store_photo",

@@ -14,6 +14,7 @@ from drf_spectacular.utils import extend_schema
 from rest_framework import mixins, viewsets
 from rest_framework.response import Response
 
+from .. import actions
 from ..field.plan import job_test_plan, plan_csv
 from ..field.prediction import field_prediction
 from ..models import FieldTest, JunctionOverride, RoomPair, Wall
@@ -89,14 +90,11 @@ class FieldTestViewSet(
 
     @transaction.atomic
     def perform_create(self, serializer):
-        obj = serializer.save(wall=self.wall, created_by=self.request.user)
-        self.record("field_test.created", obj, {"wall": self.wall.tag, "standard": obj.standard})
+        serializer.instance = actions.add_field_test(self.actor(), self.wall, serializer.validated_data)
 
     @transaction.atomic
     def perform_destroy(self, obj):
-        obj.removed = True
-        obj.save(update_fields=["removed"])
-        self.record("field_test.removed", obj, {"wall": self.wall.tag})
+        actions.remove_field_test(self.actor(), obj)
 
 
 class FieldPredictionViewSet(WallChildMixin, viewsets.GenericViewSet):

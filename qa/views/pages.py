@@ -21,6 +21,7 @@ from ..field.presentation import FIELD_CAUTION, field_summary, field_target_rows
 from ..login_throttle import LoginThrottleMixin
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from . import feedback
+from .field import FORM_KEEP
 
 OPEN = OPEN_STATUSES
 
@@ -122,7 +123,9 @@ def wall_page(request, job_pk, wall_pk):
             "height": units.fmt(wall.height_m, "size", job.units),
             "cautions": cautions_for(dict.fromkeys(caution_keys)),
             "can_edit": can(member, "edit"),
-            "page_messages": top,
+            "page_messages": [m for m in top if "field-test" not in (m.extra_tags or "")],
+            "field_messages": [m for m in top if "field-test" in (m.extra_tags or "")],
+            "field_form": request.session.pop(FORM_KEEP, {}),
         }
     )
     return render(request, "qa/wall.html", ctx)

@@ -431,6 +431,7 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:report-sign": {"POST": R("sign", ok=302, fmt="form")},
     # field rating (qa/api/field.py, qa/views/field.py)
     "qa:test-plan": {"GET": R("view")},
+    "qa:field-test-add": {"POST": R("edit", ok=302, fmt="form")},
     "api:field-prediction": {"GET": R("view")},
     "api:test-plan": {"GET": R("view")},
     "api:test-plan-csv": {"GET": R("view")},

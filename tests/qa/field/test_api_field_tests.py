@@ -243,3 +243,58 @@ def test_removing_a_test_keeps_it_in_the_record(world, api):
     assert test.removed and client.get(url(world.job, world.wall, pk)).status_code == 404
     assert client.get(pred).json()["tests"] == []  # the cached prediction followed the removal
     assert Event.objects.filter(verb="field_test.removed", target_id=str(pk)).count() == 1
+
+
+# --------------------------------------------------------------------------- the wall page's form
+def page_post(world, user, text: str, **over):
+    from django.test import Client
+
+    c = Client()
+    c.force_login(user)
+    data = {k: v for k, v in body(bands=..., source=...).items()}
+    data.update(over)
+    upload = SimpleUploadedFile("levels.csv", text.encode(), content_type="text/csv")
+    return c.post(
+        f"/jobs/{world.job.id}/walls/{world.wall.id}/field-tests/", {**data, "file": upload}, follow=True
+    )
+
+
+def test_wall_page_form_stores_the_same_test_as_the_api(world, api):
+    """One write path: the form and the API store equal rows and events (ids and times aside)."""
+    from qa.models import Event
+
+    r = page_post(world, world.inspector, csv_text())
+    html = r.content.decode()
+    assert (
+        r.status_code == 200 and "data-field-messages" in html and "Field test of 2026-11-20 stored" in html
+    )
+    upload = SimpleUploadedFile("levels.csv", csv_text().encode(), content_type="text/csv")
+    data = {k: v for k, v in body(bands=...).items()}
+    assert api(world.inspector).post(url(world.job, world.wall), {**data, "file": upload}).status_code == 201
+    page, via_api = FieldTest.objects.order_by("id")
+    skip = {"_state", "id", "created_at"}
+    assert {k: v for k, v in vars(page).items() if k not in skip} == {
+        k: v for k, v in vars(via_api).items() if k not in skip
+    }
+    events = list(Event.objects.filter(verb="field_test.created").order_by("id"))
+    assert len(events) == 2 and events[0].data == events[1].data and events[0].actor == events[1].actor
+    assert page.results["dnt_w"]["value"] == 50  # the hand-calculated value of the API tests above
+
+
+def test_wall_page_form_refuses_bad_input_beside_the_form_and_stores_nothing(world):
+    r = page_post(world, world.inspector, csv_text(["510,95,45,30,0.5"]))
+    html = r.content.decode()
+    note = html.split("data-field-messages>", 1)[1].split("</div>", 1)[0]
+    assert "Field test not stored" in note and "row 2.band_hz" in note and "one-third-octave centre" in note
+    assert 'id="field-test-form" open' in html, "the form stays open beside its error"
+    assert 'value="R. Alvarez (fictional)"' in html and 'value="2026-11-20"' in html, "what was typed is kept"
+    r = page_post(world, world.inspector, csv_text(), volume_m3="-3")
+    assert "volume_m3" in r.content.decode() and "must be &gt; 0" in r.content.decode()
+    assert not FieldTest.objects.exists()
+
+
+@pytest.mark.parametrize("role", ["owner", "crew", "outsider"])
+def test_wall_page_form_is_for_those_who_may_edit(world, role):
+    user = {"owner": world.owner, "crew": world.electrician, "outsider": world.outsider}[role]
+    r = page_post(world, user, csv_text())
+    assert r.status_code in (403, 404) and not FieldTest.objects.exists()
