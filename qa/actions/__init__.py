@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from .conflicts import keep_conflict, resolve_conflict
 from .context import Actor, Reject, Stale
+from .field_inputs import remove_field_input, save_field_input
 from .field_tests import add_field_test, remove_field_test
 from .findings import create_finding, edit_finding, finding_step, remove_finding
 from .photos import store_photo
@@ -27,9 +28,11 @@ __all__ = [
     "edit_finding",
     "finding_step",
     "keep_conflict",
+    "remove_field_input",
     "remove_field_test",
     "remove_finding",
     "resolve_conflict",
+    "save_field_input",
     "store_photo",
     "tick_seal_point",
 ]

@@ -23,28 +23,23 @@ from .views import JobScopedMixin, WallChildMixin
 
 
 class _Recorded:
-    """Create, change and delete with an event in the job's trail, all in one transaction."""
+    """Create, change and delete through the one write path (with an event), in one transaction."""
 
     noun = ""
 
     @transaction.atomic
     def perform_create(self, serializer):
-        obj = serializer.save(wall=self.wall)
-        self.record(f"{self.noun}.created", obj, {"wall": self.wall.tag})
+        actions.save_field_input(self.actor(), self.wall, self.noun, serializer)
 
     @transaction.atomic
     def perform_update(self, serializer):
-        obj = serializer.save()
-        self.record(
-            f"{self.noun}.changed", obj, {"wall": self.wall.tag, "fields": sorted(serializer.validated_data)}
-        )
+        actions.save_field_input(self.actor(), self.wall, self.noun, serializer)
 
     @transaction.atomic
     def perform_destroy(self, obj):
-        # Rooms and junctions are inputs, not findings: the event keeps what they were.
-        data = self.get_serializer(obj).data
-        self.record(f"{self.noun}.removed", obj, {"wall": self.wall.tag, "was": dict(data)})
-        obj.delete()
+        actions.remove_field_input(
+            self.actor(), self.wall, self.noun, obj, dict(self.get_serializer(obj).data)
+        )
 
 
 class RoomPairViewSet(_Recorded, WallChildMixin, viewsets.ModelViewSet):

@@ -11,11 +11,11 @@ from django.views.decorators.http import require_POST, require_safe
 
 from .. import actions
 from ..access import job_for
-from ..api.field_serializers import FieldTestSerializer
+from ..api.field_serializers import FieldTestSerializer, RoomPairSerializer
 from ..field.choices import BuildingKind
 from ..field.plan import job_test_plan, job_walls, measured_summary
 from ..field.presentation import scatter_svg
-from ..models import Wall
+from ..models import RoomPair, Wall
 
 
 @require_safe
@@ -43,6 +43,8 @@ def field_test_plan_page(request, job_pk):
 
 #: Session key of the values typed into a refused form (read back once by the wall page).
 FORM_KEEP = "sealwalk_field_test_form"
+#: Session key of the rooms form's refused values.
+ROOMS_KEEP = "sealwalk_field_rooms_form"
 #: The form's optional fields; an empty one is left out rather than refused as "not a number".
 _FORM_FIELDS = ("tested_on", "tester", "standard", "volume_m3", "area_m2", "note", "allow_background_limit")
 
@@ -77,4 +79,53 @@ def field_test_add(request, job_pk, wall_pk):
         + " The measured result is shown beside the prediction.",
         extra_tags="field-test",
     )
+    return redirect(back)
+
+
+#: The rooms form's fields; a blank number means "the default" (null), as in the API.
+_ROOM_NUMBERS = ("source_volume_m3", "receiving_volume_m3", "receiving_t_s", "area_m2", "field_target")
+
+
+def rooms_form(wall, kept: dict | None) -> dict:
+    """The rooms form's values: what was typed into a refused form, else the wall's first room pair
+    (blank where it takes the default)."""
+    if kept is not None:
+        return kept
+    pair = RoomPair.objects.filter(wall=wall).order_by("id").first()
+    if pair is None:
+        return {"source_face": "a"}
+    return {
+        "label": pair.label,
+        "source_face": pair.source_face,
+        "field_descriptor": pair.field_descriptor,
+        **{k: "" if getattr(pair, k) is None else f"{getattr(pair, k):g}" for k in _ROOM_NUMBERS},
+    }
+
+
+@require_POST
+@login_required
+def rooms_save(request, job_pk, wall_pk):
+    """The wall page's rooms form: the rooms on the wall's two faces and their own field target, checked
+    by the API's rules and stored by the one write path (the wall's first room pair, made if none)."""
+    job, member = job_for(request.user, job_pk, "edit")
+    wall = get_object_or_404(Wall.objects.live().select_related("wall_type"), job=job, pk=wall_pk)
+    back = reverse("qa:wall", kwargs={"job_pk": job.pk, "wall_pk": wall.pk}) + "#rooms-form"
+    pair = RoomPair.objects.filter(wall=wall).order_by("id").first()
+    data: dict = {
+        "label": request.POST.get("label", "").strip(),
+        "source_face": request.POST.get("source_face", "a"),
+        "field_descriptor": request.POST.get("field_descriptor", ""),
+    }
+    for name in _ROOM_NUMBERS:
+        data[name] = request.POST.get(name, "").strip() or None
+    serializer = RoomPairSerializer(instance=pair, data=data, context={"job": job, "wall": wall})
+    if not serializer.is_valid():
+        request.session[ROOMS_KEEP] = {k: ("" if v is None else str(v))[:120] for k, v in data.items()}
+        for name, problems in serializer.errors.items():
+            text = " ".join(str(p) for p in (problems if isinstance(problems, list) else [problems]))
+            messages.error(request, f"Rooms not saved. {name}: {text}", extra_tags="field-rooms")
+        return redirect(back)
+    with transaction.atomic():
+        actions.save_field_input(actions.Actor(member), wall, "rooms", serializer)
+    messages.success(request, "Rooms saved: the field prediction now uses them.", extra_tags="field-rooms")
     return redirect(back)

@@ -16,12 +16,13 @@ from ..audit.verdicts import coverage_of, face_name, verdicts_for_walls
 from ..audit.verdicts import verdict as verdict_of
 from ..cautions import GENERAL_CAUTIONS, cautions_for
 from ..choices import OPEN_STATUSES, Role
+from ..field.choices import FieldDescriptor
 from ..field.prediction import field_for_walls
 from ..field.presentation import FIELD_CAUTION, field_summary, field_target_rows
 from ..login_throttle import LoginThrottleMixin
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from . import feedback
-from .field import FORM_KEEP
+from .field import FORM_KEEP, ROOMS_KEEP, rooms_form
 
 OPEN = OPEN_STATUSES
 
@@ -123,9 +124,15 @@ def wall_page(request, job_pk, wall_pk):
             "height": units.fmt(wall.height_m, "size", job.units),
             "cautions": cautions_for(dict.fromkeys(caution_keys)),
             "can_edit": can(member, "edit"),
-            "page_messages": [m for m in top if "field-test" not in (m.extra_tags or "")],
+            "page_messages": [m for m in top if "field-" not in (m.extra_tags or "")],
             "field_messages": [m for m in top if "field-test" in (m.extra_tags or "")],
+            "rooms_messages": [m for m in top if "field-rooms" in (m.extra_tags or "")],
             "field_form": request.session.pop(FORM_KEEP, {}),
+            # Only those who may edit see the rooms form (and pay its query).
+            "rooms_form": rooms_form(wall, request.session.pop(ROOMS_KEEP, None))
+            if can(member, "edit")
+            else {},
+            "field_descriptors": FieldDescriptor.choices,
         }
     )
     return render(request, "qa/wall.html", ctx)

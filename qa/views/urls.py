@@ -18,4 +18,5 @@ urlpatterns: list = [
     path("jobs/<id:job_pk>/report/sign/", handover.sign_off, name="report-sign"),
     path("jobs/<id:job_pk>/test-plan/", field.field_test_plan_page, name="test-plan"),
     path("jobs/<id:job_pk>/walls/<id:wall_pk>/field-tests/", field.field_test_add, name="field-test-add"),
+    path("jobs/<id:job_pk>/walls/<id:wall_pk>/rooms/", field.rooms_save, name="rooms-save"),
 ]

@@ -250,3 +250,63 @@ def test_wrong_methods_are_405(world, api):
     )
     assert client.post(f"/api/jobs/{world.job.id}/test-plan/", {}).status_code == 405
     assert client.delete(f"/api/jobs/{world.job.id}/building-kind/").status_code == 405
+
+
+# --------------------------------------------------------------------------- the wall page's rooms form
+def rooms_page_post(world, user, **fields):
+    from django.test import Client
+
+    c = Client()
+    c.force_login(user)
+    data = {"label": "", "source_face": "a", "field_descriptor": "", **fields}
+    return c.post(f"/jobs/{world.job.id}/walls/{world.wall.id}/rooms/", data, follow=True)
+
+
+def test_rooms_form_saves_what_the_api_would_and_the_prediction_uses_it(world, api):
+    """One write path: the form and the API store equal rooms and events; the prediction follows."""
+    r = rooms_page_post(
+        world, world.inspector, label="Unit 201 to unit 202", source_volume_m3="48", receiving_volume_m3="40",
+        receiving_t_s="0.6", area_m2="14", field_target="50", field_descriptor="nnic",
+    )  # fmt: skip
+    html = r.content.decode()
+    assert "Rooms saved" in html and 'value="Unit 201 to unit 202"' in html
+    page = RoomPair.objects.get(wall=world.wall)
+    second = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-09", level="2", length_m=world.wall.length_m,
+        height_m=world.wall.height_m, target_rating=50,
+    )  # fmt: skip
+    body = rooms(field_target=50, field_descriptor="nnic")
+    assert api(world.inspector).post(rooms_url(world.job, second), body, format="json").status_code == 201
+    via_api = RoomPair.objects.get(wall=second)
+    skip = {"_state", "id", "wall_id", "created_at", "updated_at"}
+    assert {k: v for k, v in vars(page).items() if k not in skip} == {
+        k: v for k, v in vars(via_api).items() if k not in skip
+    }
+    events = list(Event.objects.filter(verb="rooms.created").order_by("id"))
+    assert len(events) == 2 and events[0].actor == events[1].actor
+    pred = api(world.owner).get(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/field-prediction/").json()
+    assert pred["pairs"][0]["target"] == {
+        "descriptor": "nnic", "value": 50, "derived": False, "basis": "entered for these rooms",
+    }  # fmt: skip
+
+    # Saving again changes the same pair; a blank number goes back to the default.
+    rooms_page_post(world, world.inspector, label="Unit 201 to unit 202", receiving_t_s="")
+    page.refresh_from_db()
+    assert RoomPair.objects.filter(wall=world.wall).count() == 1 and page.receiving_t_s is None
+    assert Event.objects.filter(verb="rooms.changed").count() == 1
+
+
+def test_rooms_form_refuses_bad_input_beside_the_form_and_keeps_it(world):
+    r = rooms_page_post(world, world.inspector, receiving_volume_m3="-5", label="Kept label")
+    html = r.content.decode()
+    note = html.split("data-rooms-messages>", 1)[1].split("</div>", 1)[0]
+    assert "Rooms not saved" in note and "receiving_volume_m3" in note
+    assert 'id="rooms-form" open' in html and 'value="Kept label"' in html and 'value="-5"' in html
+    assert not RoomPair.objects.exists()
+
+
+@pytest.mark.parametrize("role", ["owner", "crew", "outsider"])
+def test_rooms_form_is_for_those_who_may_edit(world, role):
+    user = {"owner": world.owner, "crew": world.electrician, "outsider": world.outsider}[role]
+    r = rooms_page_post(world, user, source_volume_m3="40")
+    assert r.status_code in (403, 404) and not RoomPair.objects.exists()
