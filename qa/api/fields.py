@@ -32,6 +32,11 @@ class FiniteFloatField(serializers.FloatField):
         return value
 
 
+def in_api_units(value: float | None, quantity: str, job_units: str) -> float | None:
+    """An SI value as the API writes it: in the job's units, to six decimals (None stays None)."""
+    return None if value is None else round(units.from_si(value, quantity, job_units), 6)
+
+
 class UnitField(FiniteFloatField):
     """A quantity in the job's units on the wire, SI inside.
 
@@ -67,6 +72,4 @@ class UnitField(FiniteFloatField):
 
     # The stubs give FloatField a str representation; DRF's FloatField (and this field) return a number.
     def to_representation(self, value) -> float | None:  # type: ignore[override]
-        if value is None:
-            return None
-        return round(units.from_si(value, self.quantity, self._units()), 6)
+        return in_api_units(value, self.quantity, self._units())

@@ -13,6 +13,7 @@ from collections.abc import Iterable
 from django.contrib import messages
 
 _PREFIX = "at-finding-"
+_FORM = "at-form-"
 
 
 def tag(finding_pk) -> str:
@@ -39,3 +40,19 @@ def split(request, shown: Iterable[int] = ()) -> tuple[list, dict[int, list]]:
         else:
             top.append(m)
     return top, beside
+
+
+def form_tag(form: str) -> str:
+    """``extra_tags`` value that ties a message to one form of a page (shown inside that form)."""
+    return f"{_FORM}{form}"
+
+
+def by_form(top: list, forms: Iterable[str]) -> tuple[list, dict[str, list]]:
+    """Take the messages tied to ``forms`` out of ``top``: (the rest, {form: its messages})."""
+    at: dict[str, list] = {f: [] for f in forms}
+    rest: list = []
+    for m in top:
+        tags = (m.extra_tags or "").split()
+        form = next((f for f in at if form_tag(f) in tags), None)
+        (at[form] if form is not None else rest).append(m)
+    return rest, at

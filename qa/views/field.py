@@ -16,6 +16,7 @@ from ..field.choices import BuildingKind
 from ..field.plan import job_test_plan, job_walls, measured_summary
 from ..field.presentation import scatter_svg
 from ..models import RoomPair, Wall
+from . import feedback
 
 
 @require_safe
@@ -41,6 +42,20 @@ def field_test_plan_page(request, job_pk):
     )
 
 
+def _wall_to_edit(request, job_pk, wall_pk, form: str):
+    """(job, member, wall, the wall page at ``form``) for a member who may edit; 403 or 404 otherwise."""
+    job, member = job_for(request.user, job_pk, "edit")
+    wall = get_object_or_404(Wall.objects.live().select_related("wall_type"), job=job, pk=wall_pk)
+    return job, member, wall, reverse("qa:wall", kwargs={"job_pk": job.pk, "wall_pk": wall.pk}) + f"#{form}"
+
+
+def _refused(request, serializer, what: str, form: str) -> None:
+    """One message per refused field, naming it and its rule, shown inside ``form``."""
+    for name, problems in serializer.errors.items():
+        text = " ".join(str(p) for p in (problems if isinstance(problems, list) else [problems]))
+        messages.error(request, f"{what} {name}: {text}", extra_tags=feedback.form_tag(form))
+
+
 #: Session key of the values typed into a refused form (read back once by the wall page).
 FORM_KEEP = "sealwalk_field_test_form"
 #: Session key of the rooms form's refused values.
@@ -54,9 +69,7 @@ _FORM_FIELDS = ("tested_on", "tester", "standard", "volume_m3", "area_m2", "note
 def field_test_add(request, job_pk, wall_pk):
     """The wall page's form: a field test from a CSV of measured levels (band_hz,l1,l2,b2,t2), checked
     by the API's own rules and stored by the one write path; the answer shows beside the form."""
-    job, member = job_for(request.user, job_pk, "edit")
-    wall = get_object_or_404(Wall.objects.live().select_related("wall_type"), job=job, pk=wall_pk)
-    back = reverse("qa:wall", kwargs={"job_pk": job.pk, "wall_pk": wall.pk}) + "#field-test-form"
+    job, member, wall, back = _wall_to_edit(request, job_pk, wall_pk, "field-test-form")
     data = {k: request.POST[k] for k in _FORM_FIELDS if request.POST.get(k, "").strip()}
     data["source"] = "levels"
     if "file" in request.FILES:
@@ -65,9 +78,7 @@ def field_test_add(request, job_pk, wall_pk):
     if not serializer.is_valid():
         # What was typed comes back into the form (a file cannot), so an error costs one fix, not a retyping.
         request.session[FORM_KEEP] = {k: request.POST.get(k, "")[:300] for k in _FORM_FIELDS}
-        for name, problems in serializer.errors.items():
-            text = " ".join(str(p) for p in (problems if isinstance(problems, list) else [problems]))
-            messages.error(request, f"Field test not stored. {name}: {text}", extra_tags="field-test")
+        _refused(request, serializer, "Field test not stored.", "field-test-form")
         return redirect(back)
     with transaction.atomic():
         test = actions.add_field_test(actions.Actor(member), wall, serializer.validated_data)
@@ -77,7 +88,7 @@ def field_test_add(request, job_pk, wall_pk):
         f"Field test of {test.tested_on} stored"
         + (f": ASTC {astc}." if astc is not None else ".")
         + " The measured result is shown beside the prediction.",
-        extra_tags="field-test",
+        extra_tags=feedback.form_tag("field-test-form"),
     )
     return redirect(back)
 
@@ -107,9 +118,7 @@ def rooms_form(wall, kept: dict | None) -> dict:
 def rooms_save(request, job_pk, wall_pk):
     """The wall page's rooms form: the rooms on the wall's two faces and their own field target, checked
     by the API's rules and stored by the one write path (the wall's first room pair, made if none)."""
-    job, member = job_for(request.user, job_pk, "edit")
-    wall = get_object_or_404(Wall.objects.live().select_related("wall_type"), job=job, pk=wall_pk)
-    back = reverse("qa:wall", kwargs={"job_pk": job.pk, "wall_pk": wall.pk}) + "#rooms-form"
+    job, member, wall, back = _wall_to_edit(request, job_pk, wall_pk, "rooms-form")
     pair = RoomPair.objects.filter(wall=wall).order_by("id").first()
     data: dict = {
         "label": request.POST.get("label", "").strip(),
@@ -121,11 +130,13 @@ def rooms_save(request, job_pk, wall_pk):
     serializer = RoomPairSerializer(instance=pair, data=data, context={"job": job, "wall": wall})
     if not serializer.is_valid():
         request.session[ROOMS_KEEP] = {k: ("" if v is None else str(v))[:120] for k, v in data.items()}
-        for name, problems in serializer.errors.items():
-            text = " ".join(str(p) for p in (problems if isinstance(problems, list) else [problems]))
-            messages.error(request, f"Rooms not saved. {name}: {text}", extra_tags="field-rooms")
+        _refused(request, serializer, "Rooms not saved.", "rooms-form")
         return redirect(back)
     with transaction.atomic():
         actions.save_field_input(actions.Actor(member), wall, "rooms", serializer)
-    messages.success(request, "Rooms saved: the field prediction now uses them.", extra_tags="field-rooms")
+    messages.success(
+        request,
+        "Rooms saved: the field prediction now uses them.",
+        extra_tags=feedback.form_tag("rooms-form"),
+    )
     return redirect(back)

@@ -109,6 +109,7 @@ def wall_page(request, job_pk, wall_pk):
     verdict = verdict_of(summary, coverage_of(wall, points))
     ctx = wall_overview(job, member, wall, summary, findings, verdict)
     top, beside = feedback.split(request, [it["f"].pk for it in ctx["items"]])
+    top, at_form = feedback.by_form(top, ("field-test-form", "rooms-form"))  # shown inside those forms
     for it in ctx["items"]:
         it["feedback"] = beside.get(it["f"].pk, [])
     for p in points:
@@ -124,9 +125,9 @@ def wall_page(request, job_pk, wall_pk):
             "height": units.fmt(wall.height_m, "size", job.units),
             "cautions": cautions_for(dict.fromkeys(caution_keys)),
             "can_edit": can(member, "edit"),
-            "page_messages": [m for m in top if "field-" not in (m.extra_tags or "")],
-            "field_messages": [m for m in top if "field-test" in (m.extra_tags or "")],
-            "rooms_messages": [m for m in top if "field-rooms" in (m.extra_tags or "")],
+            "page_messages": top,
+            "field_messages": at_form["field-test-form"],
+            "rooms_messages": at_form["rooms-form"],
             "field_form": request.session.pop(FORM_KEEP, {}),
             # Only those who may edit see the rooms form (and pay its query).
             "rooms_form": rooms_form(wall, request.session.pop(ROOMS_KEEP, None))

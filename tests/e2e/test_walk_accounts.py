@@ -13,6 +13,7 @@ import uuid
 import pytest
 
 from tests.conftest import login
+from tests.e2e.test_walk_offline import open_walk
 
 pytestmark = [pytest.mark.e2e, pytest.mark.django_db(transaction=True)]
 
@@ -20,16 +21,6 @@ DATABASES = (
     "async () => (await indexedDB.databases())"
     ".map((d) => d.name).filter((n) => n.startsWith('sealwalk-walk'))"
 )
-
-
-def open_walk(page, base, job_id):
-    page.goto(base + "/")
-    page.evaluate("() => navigator.serviceWorker.ready.then(() => true)")
-    page.goto(base + "/walk/")
-    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
-    page.wait_for_selector(f"[data-take-offline='{job_id}']")
-    page.click(f"[data-take-offline='{job_id}']")
-    page.wait_for_selector("[data-wall-list]")
 
 
 def sign_out(page, base):

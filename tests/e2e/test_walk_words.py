@@ -7,6 +7,7 @@ from __future__ import annotations
 import pytest
 
 from tests.conftest import login
+from tests.e2e.test_walk_offline import open_walk, open_wall
 
 pytestmark = [pytest.mark.e2e, pytest.mark.django_db(transaction=True)]
 
@@ -25,14 +26,8 @@ def test_walk_audit_panel_uses_the_desktop_words_for_the_same_numbers(live_serve
     ctx = browser.new_context(viewport={"width": 390, "height": 844})
     page = ctx.new_page()
     login(page, live_server.url, "insp")
-    page.goto(live_server.url + "/")
-    page.evaluate("() => navigator.serviceWorker.ready.then(() => true)")
-    page.goto(live_server.url + "/walk/")
-    page.wait_for_function("() => navigator.serviceWorker.controller !== null")
-    page.click(f"[data-take-offline='{world.job.id}']")
-    page.wait_for_selector("[data-wall-list]")
-    page.fill("#wall-search", world.wall.tag)
-    page.click(f"[data-wall='{world.wall.tag}']")
+    open_walk(page, live_server.url, world.job.id)
+    open_wall(page, world.wall.tag)
     page.click("[data-audit] summary")
     shown = page.eval_on_selector_all(
         "[data-audit] dl.ratings > div",

@@ -28,72 +28,31 @@ def drf_form(finding, job):
 
 def findings(world):
     when = dt.datetime(2026, 3, 2, 9, 15, 7, 123456, tzinfo=dt.UTC)
+    on_wall = {"job": world.job, "wall": world.wall}
     made = [
         Finding.objects.create(
-            job=world.job,
-            wall=world.wall,
-            kind="slit",
-            face="a",
-            width_m=0.003,
-            length_m=0.5,
-            trade="drywall",
-            note="gap at the top track",
-            created_by=world.inspector,
+            **on_wall, kind="slit", face="a", width_m=0.003, length_m=0.5, trade="drywall",
+            note="gap at the top track", created_by=world.inspector,
         ),
         Finding.objects.create(
-            job=world.job,
-            wall=world.wall,
-            kind="hole",
-            face="through",
-            diameter_m=0.0127,
-            depth_m=0.0159,
-            trade="plumbing",
-            status="fixed",
-            fix_note="sealed",
-            fixed_at=when,
-            device_time=when,
-            along_m=1.25,
-            along_from="end",
-            height_band="low",
-            created_by=world.drywaller,
+            **on_wall, kind="hole", face="through", diameter_m=0.0127, depth_m=0.0159, trade="plumbing",
+            status="fixed", fix_note="sealed", fixed_at=when, device_time=when, along_m=1.25,
+            along_from="end", height_band="low", created_by=world.drywaller,
         ),
         Finding.objects.create(
-            job=world.job,
-            wall=world.wall,
-            kind="area",
-            face="b",
-            area_m2=0.0042,
-            count=3,
-            at_edge=True,
-            trade="electrical",
-            status="verified",
-            fixed_at=when,
-            verified_at=when + dt.timedelta(hours=2),
-            along_m=0.0,
-            along_from="start",
-            created_by=world.electrician,
+            **on_wall, kind="area", face="b", area_m2=0.0042, count=3, at_edge=True, trade="electrical",
+            status="verified", fixed_at=when, verified_at=when + dt.timedelta(hours=2), along_m=0.0,
+            along_from="start", created_by=world.electrician,
         ),
-    ]
-    photo = Photo.objects.create(
-        job=world.job,
-        wall=world.wall,
-        finding=made[0],
-        sha256="0" * 64,
-        uploaded_by=world.inspector,
-        image="p/a.jpg",
-        thumbnail="p/a_t.jpg",
-    )
-    Photo.objects.create(
-        job=world.job,
-        wall=world.wall,
-        finding=made[0],
-        sha256="1" * 64,
-        uploaded_by=world.inspector,
-        image="p/b.jpg",
-        thumbnail="p/b_t.jpg",
-        removed=True,
-    )
-    return made, photo
+    ]  # fmt: skip
+    photos = [
+        Photo.objects.create(
+            **on_wall, finding=made[0], sha256=str(i) * 64, uploaded_by=world.inspector,
+            image=f"p/{i}.jpg", thumbnail=f"p/{i}_t.jpg", removed=bool(i),
+        )
+        for i in range(2)  # one live photo, one removed
+    ]  # fmt: skip
+    return made, photos[0]
 
 
 @pytest.mark.parametrize("units", ["metric", "imperial"])
