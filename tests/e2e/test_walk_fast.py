@@ -183,7 +183,7 @@ def test_fast_walk_fold_next_pass_rest_units_and_next_wall(live_server, small_ph
     assert height <= 4, f"the walked wall page is {height:.1f} screens long"
     # The end of the page can scroll clear of the bar and the dock.
     page.evaluate("() => window.scrollTo(0, document.documentElement.scrollHeight)")
-    last_box = page.locator("#walk-main > :last-child").bounding_box()
+    last_box = box(page, "#walk-main > :last-child")
     dock_top = box(page, "[data-dock]")["y"]
     assert last_box["y"] + last_box["height"] <= dock_top + 1
     page.screenshot(path=str(artifacts / "walk-fast-done-360.png"))
@@ -223,11 +223,12 @@ def test_errors_beside_the_control_and_reopen_needs_a_note(live_server, small_ph
         }""",
         [world.job.id, point.id, point.version],
     )
-    note = page.locator(f"[data-point='{point.id}'] [data-problem]")
+    note_selector = f"[data-point='{point.id}'] [data-problem]"
+    note = page.locator(note_selector)
     note.wait_for()
     assert "not accepted by the server" in note.inner_text()
     assert "Status" in note.inner_text()
-    note_box = note.bounding_box()
+    note_box = box(page, note_selector)
     assert note_box["y"] >= 0 and note_box["y"] + note_box["height"] <= 780, "the error is on the screen"
     page.screenshot(path=str(artifacts / "walk-error-beside-point-360.png"))
     page.click(f"[data-point='{point.id}'] [data-dismiss-problem]")
@@ -241,7 +242,7 @@ def test_errors_beside_the_control_and_reopen_needs_a_note(live_server, small_ph
     page.click("[data-confirm-reopen]")
     error = page.locator("#reopen-note-error")
     assert "required" in error.inner_text()
-    err_box, field_box = error.bounding_box(), box(page, "#reopen-note")
+    err_box, field_box = box(page, "#reopen-note-error"), box(page, "#reopen-note")
     gap = err_box["y"] - (field_box["y"] + field_box["height"])
     assert 0 <= gap < 40, "the error sits right under the field"
     assert page.evaluate("() => document.activeElement.id") == "reopen-note"
