@@ -6,7 +6,8 @@ from contextlib import contextmanager
 from typing import TYPE_CHECKING
 
 from django.db import IntegrityError, transaction
-from django.db.models import Count, Prefetch, Q
+from django.db.models import Count, IntegerField, OuterRef, Prefetch, QuerySet, Subquery
+from django.db.models.functions import Coalesce
 from rest_framework import mixins, status, viewsets
 from rest_framework.decorators import action
 from rest_framework.exceptions import NotFound, ValidationError
@@ -158,6 +159,12 @@ class WallTypeViewSet(
         self.record("walltype.changed", wall_type, {"fields": sorted(serializer.validated_data)})
 
 
+def _count(rows: QuerySet) -> Coalesce:
+    """``COUNT(*)`` of ``rows`` (correlated to the outer wall) as an annotation."""
+    counted = rows.order_by().values("wall").annotate(n=Count("pk")).values("n")
+    return Coalesce(Subquery(counted, output_field=IntegerField()), 0)
+
+
 class WallViewSet(
     JobScopedMixin,
     mixins.ListModelMixin,
@@ -173,23 +180,21 @@ class WallViewSet(
     queryset = Wall.objects.none()  # for the schema only; get_queryset scopes to the job
 
     def get_queryset(self):
+        # Counts by correlated subqueries: joining seal points and findings in one query multiplies
+        # the rows (points x findings per wall) and grew with every finding recorded.
+        points = SealPoint.objects.filter(wall=OuterRef("pk"), removed=False)
         walls = (
             Wall.objects.live()
             .filter(job=self.job)
             .annotate(
-                seal_points_total=Count("seal_points", filter=Q(seal_points__removed=False), distinct=True),
-                seal_points_checked=Count(
-                    "seal_points",
-                    filter=Q(seal_points__removed=False) & ~Q(seal_points__status=SealStatus.UNCHECKED),
-                    distinct=True,
-                ),
-                findings_open=Count(
-                    "findings",
-                    filter=Q(
-                        findings__removed=False,
-                        findings__status__in=[FindingStatus.OPEN, FindingStatus.REOPENED],
-                    ),
-                    distinct=True,
+                seal_points_total=_count(points),
+                seal_points_checked=_count(points.exclude(status=SealStatus.UNCHECKED)),
+                findings_open=_count(
+                    Finding.objects.filter(
+                        wall=OuterRef("pk"),
+                        removed=False,
+                        status__in=[FindingStatus.OPEN, FindingStatus.REOPENED],
+                    )
                 ),
             )
         )

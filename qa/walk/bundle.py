@@ -44,6 +44,16 @@ BUNDLE_FORMAT = 1
 
 def _plain(value: Any) -> Any:
     """JSON-safe copy: numpy scalars and arrays become numbers and lists, NaN becomes null."""
+    kind = type(value)
+    # The plain JSON types first, by exact type: nearly every value of an audit is one of them.
+    if kind is str or kind is int or kind is bool or value is None:
+        return value
+    if kind is float:
+        return value if math.isfinite(value) else None
+    if kind is dict:
+        return {str(k): _plain(v) for k, v in value.items()}
+    if kind is list or kind is tuple:
+        return [_plain(v) for v in value]
     if isinstance(value, dict):
         return {str(k): _plain(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
@@ -191,8 +201,10 @@ def vocabulary() -> dict:
 
 
 def build_bundle(job: Job, member: Member) -> dict:
-    """The walk's offline copy of ``job`` for ``member`` (crew see their own trade's findings only)."""
+    """The walk's offline copy of ``job`` for ``member`` (crew see their own trade's findings only),
+    without its version: :func:`bundle_json` writes it out and stamps it."""
     u = job.units
+    tz = timezone.get_current_timezone()
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
     wall_by_id = {w.id: w for w in walls}
     points = [
@@ -342,7 +354,8 @@ def build_bundle(job: Job, member: Member) -> dict:
             for p in points
         ],
         "findings": [
-            finding_json(SimpleNamespace(**f), u, photos_of.get(f["id"], []), f["author"]) for f in findings
+            finding_json(SimpleNamespace(**f), u, photos_of.get(f["id"], []), f["author"], tz)
+            for f in findings
         ],
         "photos": [
             {
@@ -373,7 +386,17 @@ def build_bundle(job: Job, member: Member) -> dict:
         body["conflicts"] = [conflict_data(c, job) for c in open_conflicts]
     if audits is not None:
         body["audits"] = audits
-    text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":"))
-    body["version"] = hashlib.sha256(text.encode()).hexdigest()[:20]
-    body["generated_at"] = timezone.now().isoformat()
     return body
+
+
+def bundle_json(job: Job, member: Member) -> tuple[str, bytes]:
+    """The bundle of :func:`build_bundle` as JSON text, encoded once: (version, UTF-8 bytes).
+
+    The version hashes everything but the moment it was written, so an unchanged job keeps its ETag.
+    """
+    body = build_bundle(job, member)
+    text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":"))
+    version = hashlib.sha256(text.encode()).hexdigest()[:20]
+    stamp = json.dumps({"generated_at": timezone.now().isoformat(), "version": version})
+    # The two keys follow the hashed content; the walk reads JSON, not the order of its keys.
+    return version, (text[:-1] + "," + stamp[1:]).encode()

@@ -37,6 +37,7 @@ from rest_framework import serializers
 from .. import actions
 from ..actions import Actor, Reject, Stale
 from ..actions.parse import parse_id, parse_uuid, parse_version
+from ..api.finding_json import finding_json
 from ..api.serializers import FindingSerializer
 from ..audit.cache import deferred_invalidation
 from ..models import Conflict, Finding, Job, Member, Photo, SealPoint, SyncOperation
@@ -56,8 +57,9 @@ NOTE_MAX = 2000
 
 
 def finding_data(finding: Finding, job: Job) -> dict:
-    """A finding as the API shows it (job units)."""
-    return dict(FindingSerializer(finding, context={"job": job}).data)
+    """A finding as the API shows it (job units): the serializer's own writer, without a serializer."""
+    photos = [str(p.id) for p in finding.photos.all() if not p.removed]
+    return finding_json(finding, job.units, photos, finding.created_by.username)
 
 
 def conflict_data(conflict: Conflict, job: Job) -> dict:
@@ -139,6 +141,8 @@ class Prefetched:
     points: dict[int, SealPoint] = field(default_factory=dict)
     #: client ids of findings that already exist (a replayed create); None: not looked up
     existing: set[uuid.UUID] | None = None
+    #: the batch's one serializer for new findings (see :func:`_new_finding_serializer`)
+    creating: FindingSerializer | None = None
 
 
 _PREFETCHED: ContextVar[Prefetched | None] = ContextVar("sealwalk_sync_prefetched", default=None)
@@ -194,6 +198,25 @@ def _seal_point_status(actor: Actor, op: Operation) -> Answer:
     return {"status": "applied", "seal_point": _seal_point_data(point)}, None
 
 
+def _new_finding_serializer(actor: Actor, payload: Any) -> FindingSerializer:
+    """A serializer validating ``payload`` as a new finding of the actor's job.
+
+    Within a batch one serializer serves every create, given each payload in turn: DRF copies all the
+    declared fields for each new serializer, which was a third of what a create cost.
+    """
+    batch = _PREFETCHED.get()
+    if batch is None or batch.creating is None:
+        serializer = FindingSerializer(data=payload, context={"job": actor.job})
+        if batch is not None:
+            batch.creating = serializer
+        return serializer
+    serializer = batch.creating
+    serializer.initial_data = payload
+    for state in ("_validated_data", "_errors", "_data"):  # what DRF keeps from the last validation
+        serializer.__dict__.pop(state, None)
+    return serializer
+
+
 def _finding_create(actor: Actor, op: Operation) -> Answer:
     actor.need("edit")
     if op.payload.get("client_id") is None:
@@ -204,7 +227,7 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
     existing = None if absent else actions.findings.existing_finding(actor, client_id)
     if existing is not None:
         return {"status": "applied", "finding": finding_data(existing, actor.job)}, None
-    serializer = FindingSerializer(data=op.payload, context={"job": actor.job})
+    serializer = _new_finding_serializer(actor, op.payload)
     if not serializer.is_valid():
         raise Reject(_plain_errors(serializer.errors))
     finding: Finding | None

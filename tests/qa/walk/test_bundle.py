@@ -23,7 +23,7 @@ def test_bundle_holds_the_job_in_its_units(world, api):
     make_finding(world, "electrical")
     response = api(world.inspector).get(url(world.job))
     assert response.status_code == 200
-    body = response.data
+    body = response.json()
     assert body["job"]["units"] == "metric" and body["job"]["symbols"]["gap"] == "mm"
     assert [w["tag"] for w in body["walls"]] == ["2-01"]
     assert body["walls"][0]["length"] == pytest.approx(6.0)
@@ -58,7 +58,7 @@ def test_etag_answers_not_modified_until_something_changes(world, api):
 def test_crew_bundle_has_only_their_trade(world, api):
     make_finding(world, "electrical")
     make_finding(world, "drywall")
-    body = api(world.electrician).get(url(world.job)).data
+    body = api(world.electrician).get(url(world.job)).json()
     assert {f["trade"] for f in body["findings"]} == {"electrical"}
     assert body["me"] == {"username": "elec", "name": "elec", "role": "crew", "trade": "electrical"}
     assert body["conflicts"] == []
@@ -66,7 +66,7 @@ def test_crew_bundle_has_only_their_trade(world, api):
 
 def test_the_bundle_carries_each_walls_last_audit(world, api):
     make_finding(world, "electrical")
-    body = api(world.inspector).get(url(world.job)).data
+    body = api(world.inspector).get(url(world.job)).json()
     audit = body["audits"][str(world.wall.id)]
     assert audit["designed"] is not None and audit["target"] == 50
     finding = Finding.objects.get()
@@ -83,7 +83,7 @@ def test_access(world, api):
 def test_bundle_carries_the_rules_the_walk_forms_apply_from_their_one_source(world, api):
     from qa.choices import SIZE_RULES, STATUS_GROUPS
 
-    body = api(world.inspector).get(url(world.job)).data
+    body = api(world.inspector).get(url(world.job)).json()
     assert body["size_rules"] == {k: {n: list(v) for n, v in r.items()} for k, r in SIZE_RULES.items()}
     assert body["status_groups"] == {k: list(v) for k, v in STATUS_GROUPS.items()}
     assert body["job"]["symbols"]["small_area"] == "cm²"
@@ -97,7 +97,7 @@ def test_prefilled_sizes_keep_their_precision(world, api):
     point = world.wall.seal_points.order_by("position").first()
     point.gap_kind, point.gap = "back_to_back", {"area_m2": 0.000645}
     point.save()
-    body = api(world.inspector).get(url(world.job)).data
+    body = api(world.inspector).get(url(world.job)).json()
     row = next(p for p in body["seal_points"] if p["id"] == point.id)
     assert row["prefill"]["area"] == 0.000645
 
@@ -114,6 +114,6 @@ def test_photos_come_with_their_full_image_address_and_thumbnail_size(world, api
     Image.effect_noise((400, 300), 50).convert("RGB").save(out, "JPEG")
     actor = actions.Actor(Member.objects.get(job=world.job, user=world.inspector))
     photo = actions.store_photo(actor, out.getvalue(), wall=world.wall)
-    row = api(world.inspector).get(url(world.job)).data["photos"][0]
+    row = api(world.inspector).get(url(world.job)).json()["photos"][0]
     assert row["image_url"].endswith(f"/photos/{photo.id}/image")
     assert row["thumb_bytes"] == photo.thumbnail.size > 0

@@ -234,3 +234,24 @@ def test_stale_remove_is_a_conflict(world, api):
     answer = send(client, world, [op("finding.remove", {"finding": cid}, base=1)]).data["results"][0]
     assert answer["status"] == "conflict"
     assert not Finding.objects.get().removed
+
+
+def test_creates_in_one_batch_are_each_checked_on_their_own(world, api):
+    """One serializer serves a batch's creates: nothing of one payload or its refusal reaches the next."""
+    ops = [
+        create_op(world, width=6, note="first"),
+        create_op(world, width=None, note="second, no width"),
+        create_op(world, kind="hole", width=None, length=None, diameter=20, note="third", trade="plumbing"),
+        create_op(world, width=3, length=800, wall=world.other_wall.id, note="fourth, another job's wall"),
+    ]
+    answers = send(api(world.inspector), world, ops).data["results"]
+    assert [a["status"] for a in answers] == ["applied", "rejected", "applied", "rejected"]
+    assert "width" in str(answers[1]) and "wall" in str(answers[3])
+    assert "width" not in str(answers[3])
+    stored = {f.note: f for f in Finding.objects.all()}
+    assert set(stored) == {"first", "third"}
+    assert stored["first"].kind == "slit" and stored["first"].width_m == pytest.approx(0.006)
+    third = stored["third"]
+    assert (third.kind, third.trade, third.width_m) == ("hole", "plumbing", None)
+    assert third.diameter_m == pytest.approx(0.020)
+    assert answers[2]["finding"]["diameter"] == pytest.approx(20) and answers[2]["finding"]["note"] == "third"
