@@ -15,6 +15,9 @@ SEALWALK_DATA_DIR     where the SQLite file and local media live (default: the p
 MEDIA_STORAGE         "local" (default) or "s3" (needs the ``s3`` extra and AWS_* variables).
 SECURE_HTTPS          "1" behind HTTPS: HSTS, secure cookies, SSL redirect.
 UPLOAD_*              limits on unfinished walk uploads (see "Upload limits" below).
+LIST_MAX_AGE          seconds a read many people poll (the API's wall list, the walk's bundle) may be
+                      from a moment ago: audits marked as being recounted, one bundle shared by the
+                      people of one view who changed nothing lately (default 5; 0: always anew).
 """
 
 from __future__ import annotations
@@ -226,6 +229,10 @@ UPLOAD_MAX_PENDING_BYTES_PER_USER = env_int("UPLOAD_MAX_PENDING_BYTES_PER_USER",
 UPLOAD_MAX_PENDING_BYTES_PER_JOB = env_int("UPLOAD_MAX_PENDING_BYTES_PER_JOB", 500 * 1024 * 1024, minimum=1)
 # ``manage.py purge_uploads`` removes unfinished uploads untouched for this long (run it from cron).
 UPLOAD_ABANDONED_AFTER_HOURS = env_int("UPLOAD_ABANDONED_AFTER_HOURS", 72, minimum=1)
+
+# A job recorded fast (a sync every moment) would have its audits and the walk's bundle worked out
+# again for every reader; those reads may answer with what is at most this old, marked as such.
+LIST_MAX_AGE = env_int("LIST_MAX_AGE", 5, minimum=0)
 
 CACHES = {
     "default": {

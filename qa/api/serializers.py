@@ -7,6 +7,7 @@ import json
 import math
 from typing import TYPE_CHECKING, Any, cast
 
+from django.conf import settings
 from django.contrib.auth import get_user_model
 from rest_framework import serializers
 
@@ -232,8 +233,11 @@ class WallSerializer(serializers.ModelSerializer):
         memo = cast(dict[str, Any], self.context).setdefault("_verdicts", {})
         if wall.pk not in memo:
             many = getattr(self.parent, "instance", None)
-            walls = list(many) if many is not None and self.parent is not None else [wall]
-            memo.update(verdicts_for_walls([w for w in walls if w.pk not in memo] or [wall]))
+            listed = many is not None and self.parent is not None
+            walls = list(many) if many is not None and listed else [wall]
+            # A list may show an audit a moment old, marked so; one wall's answer is always recounted.
+            max_age = settings.LIST_MAX_AGE if listed else 0
+            memo.update(verdicts_for_walls([w for w in walls if w.pk not in memo] or [wall], max_age=max_age))
         return memo[wall.pk]
 
     def __init__(self, *args, **kwargs):

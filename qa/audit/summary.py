@@ -36,7 +36,9 @@ References
 
 from __future__ import annotations
 
+import hashlib
 import re
+import time
 from collections.abc import Iterable
 from typing import Any
 
@@ -409,19 +411,66 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
 
 
 # --------------------------------------------------------------------------- cached lookups
-def audits_for_walls(walls: Iterable) -> dict[int, dict]:
+#: Longest a recount may hold its lock (s); past it another reader recounts.
+RECOUNT_LOCK_S = 60
+
+
+def _latest_key(wall_id: int) -> str:
+    """Cache key of the last audit computed for a wall, whatever its stamp (see ``max_age``)."""
+    return f"sealwalk:audit-latest:{ENGINE_VERSION}:{wall_id}"
+
+
+def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
     """Cached audit summaries of ``walls`` (each with its wall type loaded): {wall id: summary}.
 
     Warm: two cache reads, no query. Cold walls: two queries (openings, findings) for all of them.
+
+    ``max_age`` (seconds; lists that many people poll, never a page that decides anything): a wall
+    whose inputs changed since its last audit may be answered with that audit when it is at most
+    this old, marked ``"recounting": True``. While a wall is being recorded fast (a sync every moment),
+    its audit is then worked out at most once per ``max_age`` instead of once per reader; and while one
+    reader recounts, the others answer with the older audit, marked the same way.
+    Every summary carries ``key`` (the stamps it was computed for) and ``computed`` (epoch seconds).
     """
 
     walls = list(walls)
     if not walls:
         return {}
     keys = audit_keys(walls)
-    hit = cache.get_many(list(keys.values()))
+    latest = {w.pk: _latest_key(w.pk) for w in walls} if max_age > 0 else {}
+    hit = cache.get_many([*keys.values(), *latest.values()])
     out = {pk: hit[key] for pk, key in keys.items() if key in hit}
+    now = time.time()
+    stale: dict[int, dict] = {}  # older than max_age: answered only while another reader recounts
+    for pk, key in latest.items():
+        last = hit.get(key)
+        if pk in out or last is None:
+            continue
+        age = now - last.get("computed", 0)
+        if 0 <= age <= max_age:
+            out[pk] = {**last, "recounting": True}
+        elif 0 <= age <= max_age + RECOUNT_LOCK_S:
+            stale[pk] = last
     cold = [w for w in walls if w.pk not in out]
+    lock = None
+    if stale:
+        # One reader recounts a set of walls at a time; the others answer with the last audits, marked.
+        ids = ",".join(str(pk) for pk in sorted(w.pk for w in cold))
+        lock = "sealwalk:audit-recount:" + hashlib.sha256(ids.encode()).hexdigest()[:24]
+        if not cache.add(lock, 1, RECOUNT_LOCK_S):
+            lock = None
+            out.update({pk: {**last, "recounting": True} for pk, last in stale.items()})
+            cold = [w for w in cold if w.pk not in out]
+    try:
+        _recount(cold, keys, out, now)
+    finally:
+        if lock is not None:
+            cache.delete(lock)
+    return out
+
+
+def _recount(cold: list, keys: dict[int, str], out: dict[int, dict], now: float) -> None:
+    """Compute the audits of ``cold`` walls into ``out`` and the cache (stamped and latest entries)."""
     if cold:
         for w in cold:  # a wall object reused after a change must not keep its old findings
             for name in ("openings", "findings"):
@@ -437,9 +486,10 @@ def audits_for_walls(walls: Iterable) -> dict[int, dict]:
         memo: dict = {}
         fresh = {}
         for w in cold:
-            fresh[keys[w.pk]] = out[w.pk] = compute_summary(w, memo=memo)
+            summary = compute_summary(w, memo=memo)
+            summary.update(key=keys[w.pk], computed=now)
+            fresh[keys[w.pk]] = fresh[_latest_key(w.pk)] = out[w.pk] = summary
         cache.set_many(fresh, AUDIT_TIMEOUT)
-    return out
 
 
 def audits_for_job(job) -> dict[int, dict]:

@@ -128,6 +128,10 @@ NEEDED = Term(
     "good",
 )
 
+#: Added to a verdict shown from an audit a moment old while the wall's newest changes are counted
+#: (lists only; see :func:`qa.audit.summary.audits_for_walls`).
+RECOUNTING = "(from a moment ago; the newest changes are being counted)"
+
 #: What "checked" means for a seal point.
 CHECKED_STATUSES = (SealStatus.PASS, SealStatus.DEFECT, SealStatus.NA)
 FACE_ORDER = (Face.A.value, Face.B.value, Face.THROUGH.value)
@@ -237,7 +241,9 @@ def verdict(summary: dict, cov: dict) -> dict:
         ``state`` (key of :data:`STATES`), ``word``, ``tone``, ``meaning``, ``text`` (the word with
         the short-by or the coverage count, e.g. "Partly walked: 5 of 17 seal points checked"), ``coverage``
         (see :func:`coverage_for_walls`), ``coverage_text``, ``faces_text``, ``rating_name``,
-        ``ratings`` ({key of :data:`RATINGS`: value or None}) and ``shortfall``.
+        ``ratings`` ({key of :data:`RATINGS`: value or None}), ``shortfall`` and ``recounting`` (the
+        audit is a moment old and the wall's newest changes are being counted; :data:`RECOUNTING`
+        is then added to ``text``).
     """
     state = state_of(summary, cov)
     term = STATES[state]
@@ -249,6 +255,9 @@ def verdict(summary: dict, cov: dict) -> dict:
         text = f"{term.word}: {summary.get('error') or 'no curve'}"
     else:
         text = term.word
+    recounting = bool(summary.get("recounting"))
+    if recounting:  # an audit a moment old, served to a list while the wall's latest changes are counted
+        text += f" {RECOUNTING}"
     reported = (summary.get("reported") or {}).get("as_found")
     return {
         "state": state,
@@ -268,16 +277,20 @@ def verdict(summary: dict, cov: dict) -> dict:
             "reported": reported,
         },
         "shortfall": summary.get("shortfall"),
+        "recounting": recounting,
     }
 
 
-def verdicts_for_walls(walls: Iterable, audits: dict[int, dict] | None = None) -> dict[int, dict]:
-    """{wall id: :func:`verdict`} for ``walls`` (audits looked up when not given)."""
+def verdicts_for_walls(
+    walls: Iterable, audits: dict[int, dict] | None = None, *, max_age: float = 0
+) -> dict[int, dict]:
+    """{wall id: :func:`verdict`} for ``walls`` (audits looked up when not given, with ``max_age``:
+    see :func:`qa.audit.summary.audits_for_walls`)."""
     from .summary import audits_for_walls
 
     walls = list(walls)
     if audits is None:
-        audits = audits_for_walls(walls)
+        audits = audits_for_walls(walls, max_age=max_age)
     covs = coverage_for_walls(walls)
     return {w.pk: verdict(audits[w.pk], covs[w.pk]) for w in walls}
 

@@ -192,10 +192,12 @@ def rules_digest(rules: Iterable[dict]) -> str:
     return hashlib.sha256(text.encode()).hexdigest()[:12]
 
 
-def field_for_walls(walls: Iterable, job) -> dict[int, dict]:
+def field_for_walls(walls: Iterable, job, audits: dict[int, dict] | None = None) -> dict[int, dict]:
     """Cached field predictions of ``walls`` of ``job`` (wall types loaded): {wall id: result}.
 
-    The job gives the building kind (default junctions) and the rule set's field targets.
+    The job gives the building kind (default junctions) and the rule set's field targets. ``audits``:
+    the walls' audit summaries when the caller has them (perhaps a moment old, see
+    :func:`qa.audit.audits_for_walls`); each prediction is then the one of that audit.
 
     Each result also lists the wall's field tests (``tests``). Warm: cache reads only. Cold walls:
     three queries (rooms, junctions, tests) plus the audits' own, whatever their number.
@@ -206,6 +208,8 @@ def field_for_walls(walls: Iterable, job) -> dict[int, dict]:
     building_kind, rules = job.building_kind, tuple(job.field_targets or ())
     found = audit_stamps(walls, **{FIELD: [w.pk for w in walls]})  # one query for every stamp
     akeys = audit_keys(walls, found)
+    if audits is not None:  # the stamps each given audit was computed for
+        akeys = {pk: audits[pk].get("key") or key for pk, key in akeys.items()}
     stamps = {w.pk: found.get((FIELD, w.pk), 0) for w in walls}
     base = f"sealwalk:field:{FIELD_VERSION}:{building_kind}:{rules_digest(rules)}"
     keys = {w.pk: f"{base}:{akeys[w.pk]}:{stamps[w.pk]}" for w in walls}
@@ -223,7 +227,8 @@ def field_for_walls(walls: Iterable, job) -> dict[int, dict]:
         tests: dict[int, list] = {i: [] for i in ids}
         for t in FieldTest.objects.filter(wall_id__in=ids, removed=False).order_by("-tested_on", "-id"):
             tests[t.wall_id].append(entry_of_test(t))
-        audits = audits_for_walls(cold)
+        if audits is None:
+            audits = audits_for_walls(cold)
         fresh = {}
         for w in cold:
             res = compute_field(w, audits[w.pk], pairs[w.pk], overrides[w.pk], building_kind, rules)

@@ -10,9 +10,12 @@ from __future__ import annotations
 import hashlib
 import json
 import math
+import time
+from datetime import timedelta
 from types import SimpleNamespace
 from typing import Any
 
+from django.core.cache import cache
 from django.core.serializers.json import DjangoJSONEncoder
 from django.db.models import F
 from django.urls import reverse
@@ -36,10 +39,14 @@ from ..choices import (
 )
 from ..field.prediction import field_for_walls
 from ..field.presentation import FIELD_CAUTION, field_summary
-from ..models import Conflict, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
+from ..models import Conflict, Event, Finding, Job, Member, Opening, Photo, SealPoint, Wall, WallType
 from .sync import conflict_data
 
 BUNDLE_FORMAT = 1
+#: Seconds after a person's own change during which they are always sent a bundle built anew.
+WRITE_MARGIN_S = 10
+#: Longest one reader may take to build a shared bundle before another builds it (s).
+BUILD_LOCK_S = 60
 
 
 def _plain(value: Any) -> Any:
@@ -149,14 +156,13 @@ def _slim_audit(summary: dict, client_ids: dict[int, str]) -> dict:
     return _plain(out)
 
 
-def _audits(job: Job, walls: list[Wall], member: Member) -> tuple[dict, dict, list]:
+def _audits(job: Job, walls: list[Wall], member: Member, audits: dict[int, dict]) -> tuple[dict, dict, list]:
     """The last leak audit of each wall slimmed for the phone, each wall's verdict, and the
     fix-first list, all keyed by wall id.
 
     The verdict (:func:`qa.audit.verdicts.verdict`) is what the desktop shows under the same word.
     A crew member's fix-first steps are their own trade's only (step numbers stay the wall's).
     """
-    audits = audit.audits_for_walls(walls)
     verdicts = verdicts_for_walls(walls, audits)
     rows = Finding.objects.filter(job=job).order_by("id").values_list("id", "client_id", "trade", "status")
     client_ids = {k: str(c) for k, c, _t, _s in rows}
@@ -200,9 +206,20 @@ def vocabulary() -> dict:
     return out
 
 
-def build_bundle(job: Job, member: Member) -> dict:
+def _me(member: Member) -> dict:
+    user = member.user
+    return {
+        "username": user.username,
+        "name": user.get_full_name() or user.username,
+        "role": member.role,
+        "trade": member.trade or None,
+    }
+
+
+def build_bundle(job: Job, member: Member, *, audit_age: float = 0) -> dict:
     """The walk's offline copy of ``job`` for ``member`` (crew see their own trade's findings only),
-    without its version: :func:`bundle_json` writes it out and stamps it."""
+    without its version: :func:`bundle_json` writes it out and stamps it. ``audit_age``: how old
+    (seconds) a wall's audit may be while its newest changes are recounted (marked in its verdict)."""
     u = job.units
     tz = timezone.get_current_timezone()
     walls = list(Wall.objects.live().filter(job=job).select_related("wall_type"))
@@ -240,7 +257,10 @@ def build_bundle(job: Job, member: Member) -> dict:
     )
     if member.is_crew:
         photos = photos.filter(finding__trade=member.trade)
-    audits, verdicts, fix_first = _audits(job, walls, member)
+    # An audit may be a moment old while a wall is recorded fast: the walk marks the findings it has
+    # not counted yet (``includes``) and the verdict says it is being recounted.
+    summaries = audit.audits_for_walls(walls, max_age=audit_age)
+    audits, verdicts, fix_first = _audits(job, walls, member, summaries)
 
     body = {
         "format": BUNDLE_FORMAT,
@@ -254,12 +274,7 @@ def build_bundle(job: Job, member: Member) -> dict:
             "symbols": {q: units.symbol(q, u) for q in units.FACTORS[u]},
             "unit_factors": units.table(u),
         },
-        "me": {
-            "username": member.user.username,
-            "name": member.user.get_full_name() or member.user.username,
-            "role": member.role,
-            "trade": member.trade or None,
-        },
+        "me": _me(member),
         "members": [
             {
                 "username": m.user.username,
@@ -286,7 +301,8 @@ def build_bundle(job: Job, member: Member) -> dict:
         "verdicts": verdicts,
         # Each wall's predicted field rating (as designed, as walked, now) and its field target.
         "field": {
-            str(pk): _plain(field_summary(result)) for pk, result in field_for_walls(walls, job).items()
+            str(pk): _plain(field_summary(result))
+            for pk, result in field_for_walls(walls, job, summaries).items()
         },
         "field_caution": FIELD_CAUTION,
         "fix_first": fix_first,
@@ -389,14 +405,71 @@ def build_bundle(job: Job, member: Member) -> dict:
     return body
 
 
-def bundle_json(job: Job, member: Member) -> tuple[str, bytes]:
+def _shared_view(member: Member) -> str:
+    """What a bundle depends on besides the job: the role, and a crew member's trade (``me`` aside)."""
+    return f"crew-{member.trade}" if member.is_crew else str(member.role)
+
+
+def _wrote_lately(job: Job, member: Member, seconds: float) -> bool:
+    """Whether ``member`` changed anything on ``job`` in the last ``seconds`` (every write logs an event)."""
+    since = timezone.now() - timedelta(seconds=seconds)
+    return Event.objects.filter(job=job, actor_id=member.user_id, at__gte=since).exists()
+
+
+def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, bytes]:
     """The bundle of :func:`build_bundle` as JSON text, encoded once: (version, UTF-8 bytes).
 
-    The version hashes everything but the moment it was written, so an unchanged job keeps its ETag.
+    The version hashes everything but ``me`` and the moment it was written, so an unchanged job keeps
+    its ETag. ``max_age`` (seconds): people with the same view of the job (role, a crew member's
+    trade) share one copy at most this old — unless they changed something lately themselves, so
+    nobody is shown a copy from before their own change. The copy says when it was written
+    (``generated_at``); the walk marks findings its audits have not counted yet.
     """
-    body = build_bundle(job, member)
+    key = f"sealwalk:bundle:{BUNDLE_FORMAT}:{job.pk}:{_shared_view(member)}"
+    shared, lock, audit_age = None, None, max_age
+    if max_age > 0:
+        shared = cache.get(key)
+        age = time.time() - shared["built"] if shared is not None else -1.0
+        # The margin covers a change committed a moment after its event was stamped.
+        if _wrote_lately(job, member, max_age + WRITE_MARGIN_S):
+            shared, audit_age = None, 0  # their own change, counted in every audit
+        elif not 0 <= age <= max_age + BUILD_LOCK_S:
+            shared = None
+        elif age > max_age:  # past the window: one reader builds anew, the others answer with this copy
+            lock = f"{key}:building"
+            if cache.add(lock, 1, BUILD_LOCK_S):
+                shared = None
+            else:
+                lock = None
+    try:
+        if shared is None:
+            shared = _build_shared(job, member, key, max_age, audit_age)
+    finally:
+        if lock is not None:
+            cache.delete(lock)
+    extra = json.dumps(
+        {"generated_at": shared["generated_at"], "me": _me(member), "version": shared["version"]},
+        cls=DjangoJSONEncoder,
+        separators=(",", ":"),
+    )
+    # The three keys follow the shared content; the walk reads JSON, not the order of its keys.
+    return shared["version"], (shared["text"][:-1] + "," + extra[1:]).encode()
+
+
+def _build_shared(job: Job, member: Member, key: str, max_age: float, audit_age: float) -> dict:
+    """Build the bundle, without ``me``, as JSON text with its version; kept for ``max_age`` if any.
+
+    ``audit_age``: how old the audits in it may be (see :func:`qa.audit.audits_for_walls`).
+    """
+    body = build_bundle(job, member, audit_age=audit_age)
+    del body["me"]
     text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":"))
-    version = hashlib.sha256(text.encode()).hexdigest()[:20]
-    stamp = json.dumps({"generated_at": timezone.now().isoformat(), "version": version})
-    # The two keys follow the hashed content; the walk reads JSON, not the order of its keys.
-    return version, (text[:-1] + "," + stamp[1:]).encode()
+    shared = {
+        "text": text,
+        "version": hashlib.sha256(text.encode()).hexdigest()[:20],
+        "built": time.time(),
+        "generated_at": timezone.now().isoformat(),
+    }
+    if max_age > 0:
+        cache.set(key, shared, timeout=int(max_age + BUILD_LOCK_S) + 1)
+    return shared

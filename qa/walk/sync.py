@@ -40,7 +40,7 @@ from ..actions.parse import parse_id, parse_uuid, parse_version
 from ..api.finding_json import finding_json
 from ..api.serializers import FindingSerializer
 from ..audit.cache import deferred_invalidation
-from ..models import Conflict, Finding, Job, Member, Photo, SealPoint, SyncOperation
+from ..models import Conflict, Finding, Job, Member, Photo, SealPoint, SyncOperation, Wall
 from ..models.events import buffered_events
 from .operations import Operation, parse_operation
 
@@ -143,26 +143,45 @@ class Prefetched:
     existing: set[uuid.UUID] | None = None
     #: the batch's one serializer for new findings (see :func:`_new_finding_serializer`)
     creating: FindingSerializer | None = None
+    #: live walls of the job that the batch's new findings name, by id
+    walls: dict[int, Wall] = field(default_factory=dict)
+
+
+class _PreloadedWall(serializers.PrimaryKeyRelatedField):
+    """A finding's wall field answering from the walls a batch loaded at once; the database otherwise."""
+
+    def __init__(self, walls: dict[int, Wall], **kwargs: Any) -> None:
+        self.walls = walls
+        super().__init__(**kwargs)
+
+    def to_internal_value(self, data: Any) -> Any:
+        if type(data) is int and data in self.walls:  # JSON whole numbers only; DRF refuses the rest
+            return self.walls[data]
+        return super().to_internal_value(data)
 
 
 _PREFETCHED: ContextVar[Prefetched | None] = ContextVar("sealwalk_sync_prefetched", default=None)
 
 
 def _prefetch(job: Job, ops: list[Operation]) -> Prefetched:
-    point_ids, client_ids = set(), set()
+    point_ids, client_ids, wall_ids = set(), set(), set()
     for op in ops:
         try:
             if op.kind == "seal_point.status":
                 point_ids.add(parse_id(op.payload.get("seal_point"), "seal_point"))
             elif op.kind == "finding.create":
                 client_ids.add(parse_uuid(op.payload.get("client_id"), "client_id"))
+                if type(op.payload.get("wall")) is int:  # in range, or the handler answers it
+                    wall_ids.add(parse_id(op.payload["wall"], "wall"))
         except Reject:
             continue  # the handler answers it
     points = SealPoint.objects.select_for_update().filter(
         pk__in=point_ids, wall__job=job, wall__removed=False, removed=False
     )
     existing = set(Finding.objects.filter(client_id__in=client_ids).values_list("client_id", flat=True))
-    return Prefetched(points={p.pk: p for p in points}, existing=existing)
+    # The rows FindingSerializer's wall field would read one by one (same filter, same related rows).
+    walls = Wall.objects.filter(pk__in=wall_ids, job=job, removed=False).select_related("wall_type")
+    return Prefetched(points={p.pk: p for p in points}, existing=existing, walls={w.pk: w for w in walls})
 
 
 # --- operation handlers: (actor, op) -> (answer, conflict or None) ------------------------------
@@ -208,6 +227,9 @@ def _new_finding_serializer(actor: Actor, payload: Any) -> FindingSerializer:
     if batch is None or batch.creating is None:
         serializer = FindingSerializer(data=payload, context={"job": actor.job})
         if batch is not None:
+            # The serializer scoped the field's queryset to the job; the stubs do not know the attribute.
+            scoped = serializer.fields["wall"].queryset  # type: ignore[attr-defined]
+            serializer.fields["wall"] = _PreloadedWall(batch.walls, queryset=scoped)
             batch.creating = serializer
         return serializer
     serializer = batch.creating

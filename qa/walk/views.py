@@ -6,6 +6,7 @@ Thin views: the access helper resolves the job (404 for a non-member, 403 withou
 
 from __future__ import annotations
 
+from django.conf import settings
 from django.contrib.auth.decorators import login_required
 from django.db import transaction
 from django.http import HttpResponse
@@ -72,7 +73,7 @@ class BundleView(WalkView):
     """GET the job bundle. Answers 304 when ``If-None-Match`` names the current version."""
 
     def get(self, request, job_pk: int):
-        version, text = bundle_json(self.job, self.member)
+        version, text = bundle_json(self.job, self.member, max_age=settings.LIST_MAX_AGE)
         etag = f'"{version}"'
         if request.headers.get("If-None-Match") == etag:
             return Response(status=status.HTTP_304_NOT_MODIFIED, headers={"ETag": etag})

@@ -43,8 +43,9 @@ export function auditPanel(state, wall, findings) {
   const panel = h("details", { class: `audit${stale ? " stale" : ""}`, open, "data-audit": stale ? "stale" : "current" },
     h("summary", { id: "audit-h" }, summary, stale ? h("span", { class: "chip info" }, "last known") : null),
     stale ? h("p", { class: "stale-note", "data-audit-stale": "" },
-      navigator.onLine ? "Last known audit: it does not include changes made on this phone yet."
-        : "Last known audit (out of date while offline).") : null,
+      !navigator.onLine ? "Last known audit (out of date while offline)."
+        : missing.some((f) => f.local) ? "Last known audit: it does not include changes made on this phone yet."
+          : "Last known audit: the newest changes are being counted.") : null,
     audit.error ? h("p", { class: "muted" }, audit.error) : facts,
     audit.shortfall ? h("p", { class: "short" }, `${audit.shortfall} below target as found.`) : null,
     fieldLine(state, wall),
