@@ -252,15 +252,9 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
     serializer = _new_finding_serializer(actor, op.payload)
     if not serializer.is_valid():
         raise Reject(_plain_errors(serializer.errors))
-    finding: Finding | None
-    try:
-        with transaction.atomic():
-            finding = actions.create_finding(actor, serializer.validated_data)
-    except IntegrityError:
-        # The same client id arrived through another door at the same moment; that one is stored.
-        finding = actions.findings.existing_finding(actor, serializer.validated_data.get("client_id"))
-        if finding is None:
-            raise
+    # The same client id arriving through another door at this moment raises IntegrityError: _apply
+    # answers with that finding (this op's own savepoint is the only one a create needs).
+    finding = actions.create_finding(actor, serializer.validated_data)
     # A new finding has no photos yet. Django's prefetch cache is not declared in the model stubs.
     finding._prefetched_objects_cache = {"photos": Photo.objects.none()}  # type: ignore[attr-defined]
     answer: dict = {"status": "applied", "finding": finding_data(finding, actor.job)}
@@ -380,6 +374,25 @@ def _apply(actor: Actor, op: Operation, events: list) -> tuple[dict, Conflict | 
         if batch is not None:
             batch.points.clear()  # a rolled-back tick may have changed a loaded row: read them again
         return {"op_id": str(op.op_id), "kind": op.kind, **_rejection(exc)}, None
+    except IntegrityError:
+        # A create whose client id was stored through another door at the same moment: that one stands.
+        twin = None
+        if op.kind == "finding.create":
+            twin = actions.findings.existing_finding(
+                actor, parse_uuid(op.payload.get("client_id"), "client_id")
+            )
+        if twin is None:
+            raise
+        del events[mark:]
+        batch = _PREFETCHED.get()
+        if batch is not None:
+            batch.points.clear()
+        return {
+            "op_id": str(op.op_id),
+            "kind": op.kind,
+            "status": "applied",
+            "finding": finding_data(twin, actor.job),
+        }, None
 
 
 def _claim(job: Job, member: Member, device_id: str, kinds: dict[uuid.UUID, str]) -> dict:

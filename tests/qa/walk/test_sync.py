@@ -255,3 +255,36 @@ def test_creates_in_one_batch_are_each_checked_on_their_own(world, api):
     assert (third.kind, third.trade, third.width_m) == ("hole", "plumbing", None)
     assert third.diameter_m == pytest.approx(0.020)
     assert answers[2]["finding"]["diameter"] == pytest.approx(20) and answers[2]["finding"]["note"] == "third"
+
+
+def test_a_create_racing_its_twin_answers_with_the_stored_finding(world, api, monkeypatch):
+    """The client id was stored through another door after the batch looked (a unique-index race)."""
+    from qa.walk import sync
+
+    create = create_op(world, note="from the phone")
+    twin = Finding.objects.create(
+        job=world.job,
+        wall=world.wall,
+        client_id=create["payload"]["client_id"],
+        kind="slit",
+        width_m=0.006,
+        length_m=1.5,
+        trade="drywall",
+        note="through the API",
+        created_by=world.inspector,
+    )
+    looked = sync._prefetch
+
+    def before_the_twin(job, ops):
+        batch = looked(job, ops)
+        batch.existing = set()  # as if the twin were committed a moment after this look
+        return batch
+
+    monkeypatch.setattr(sync, "_prefetch", before_the_twin)
+    events = Event.objects.count()
+    answers = send(api(world.inspector), world, [create, create_op(world, note="next")]).data["results"]
+    assert [a["status"] for a in answers] == ["applied", "applied"]
+    assert answers[0]["finding"]["id"] == twin.id and answers[0]["finding"]["note"] == "through the API"
+    assert Finding.objects.filter(client_id=twin.client_id).count() == 1
+    assert Finding.objects.filter(note="next").count() == 1, "the batch goes on after the race"
+    assert Event.objects.count() - events == 1, "one event: the next finding's; the twin had its own"
