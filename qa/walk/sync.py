@@ -40,7 +40,7 @@ from ..actions.parse import parse_id, parse_uuid, parse_version
 from ..api.finding_json import finding_json
 from ..api.serializers import FindingSerializer
 from ..audit.cache import deferred_invalidation
-from ..models import Conflict, Finding, Job, Member, Photo, SealPoint, SyncOperation, Wall
+from ..models import Conflict, Finding, Job, Member, SealPoint, SyncOperation, Wall
 from ..models.events import buffered_events
 from .operations import Operation, parse_operation
 
@@ -56,9 +56,13 @@ EDITABLE = tuple(
 NOTE_MAX = 2000
 
 
-def finding_data(finding: Finding, job: Job) -> dict:
-    """A finding as the API shows it (job units): the serializer's own writer, without a serializer."""
-    photos = [str(p.id) for p in finding.photos.all() if not p.removed]
+def finding_data(finding: Finding, job: Job, photos: list[str] | None = None) -> dict:
+    """A finding as the API shows it (job units): the serializer's own writer, without a serializer.
+
+    ``photos``: its live photo ids when the caller knows them (a finding just created has none).
+    """
+    if photos is None:
+        photos = [str(p.id) for p in finding.photos.all() if not p.removed]
     return finding_json(finding, job.units, photos, finding.created_by.username)
 
 
@@ -255,9 +259,7 @@ def _finding_create(actor: Actor, op: Operation) -> Answer:
     # The same client id arriving through another door at this moment raises IntegrityError: _apply
     # answers with that finding (this op's own savepoint is the only one a create needs).
     finding = actions.create_finding(actor, serializer.validated_data)
-    # A new finding has no photos yet. Django's prefetch cache is not declared in the model stubs.
-    finding._prefetched_objects_cache = {"photos": Photo.objects.none()}  # type: ignore[attr-defined]
-    answer: dict = {"status": "applied", "finding": finding_data(finding, actor.job)}
+    answer: dict = {"status": "applied", "finding": finding_data(finding, actor.job, photos=[])}  # none yet
     if finding.seal_point is not None:
         answer["seal_point"] = _seal_point_data(finding.seal_point)
     return answer, None
