@@ -32,6 +32,10 @@ from django.core.exceptions import ImproperlyConfigured
 
 BASE_DIR = Path(__file__).resolve().parent.parent
 DATA_DIR = Path(os.environ.get("SEALWALK_DATA_DIR", BASE_DIR))
+try:  # a data folder named but not made yet is made (SQLite cannot create the folder of its file)
+    DATA_DIR.mkdir(parents=True, exist_ok=True)
+except OSError as exc:
+    raise ImproperlyConfigured(f"SEALWALK_DATA_DIR: cannot create {DATA_DIR} ({exc.strerror})") from None
 
 
 def env_flag(name: str, default: bool) -> bool:

@@ -9,13 +9,15 @@ from django.shortcuts import get_object_or_404, redirect, render
 from django.urls import reverse
 from django.views.decorators.http import require_POST, require_safe
 
+from acoustics.building_kinds import default_junctions
+
 from .. import actions
 from ..access import job_for
-from ..api.field_serializers import FieldTestSerializer, RoomPairSerializer
-from ..field.choices import BuildingKind
+from ..api.field_serializers import FieldTestSerializer, JunctionOverrideSerializer, RoomPairSerializer
+from ..field.choices import BuildingKind, JunctionKind, JunctionPosition
 from ..field.plan import job_test_plan, job_walls, measured_summary
 from ..field.presentation import scatter_svg
-from ..models import RoomPair, Wall
+from ..models import JunctionOverride, RoomPair, Wall
 from . import feedback
 
 
@@ -60,6 +62,8 @@ def _refused(request, serializer, what: str, form: str) -> None:
 FORM_KEEP = "sealwalk_field_test_form"
 #: Session key of the rooms form's refused values.
 ROOMS_KEEP = "sealwalk_field_rooms_form"
+#: Session key of the junctions form's refused values.
+JUNCTIONS_KEEP = "sealwalk_field_junctions_form"
 #: The form's optional fields; an empty one is left out rather than refused as "not a number".
 _FORM_FIELDS = ("tested_on", "tester", "standard", "volume_m3", "area_m2", "note", "allow_background_limit")
 
@@ -138,5 +142,80 @@ def rooms_save(request, job_pk, wall_pk):
         request,
         "Rooms saved: the field prediction now uses them.",
         extra_tags=feedback.form_tag("rooms-form"),
+    )
+    return redirect(back)
+
+
+def junction_choices() -> dict:
+    """The junctions form's two lists: how a junction is built, and whose flanking element meets it."""
+    return {"junction_kinds": JunctionKind.choices, "element_kinds": BuildingKind.choices}
+
+
+def junctions_form(wall, kept: dict | None) -> list[dict]:
+    """The junctions form's rows, one per position: what was typed into a refused form, else the wall's
+    entered junctions (blank: the default of the job's building kind, named in ``default``)."""
+    defaults = {j.position: j.kind for j in default_junctions(wall.job.building_kind)}
+    if kept is None:
+        entered = {j.position: j for j in JunctionOverride.objects.filter(wall=wall)}
+        kept = {}
+        for p in JunctionPosition.values:
+            j = entered.get(p)
+            kept[f"kind_{p}"] = j.kind if j else ""
+            kept[f"from_{p}"] = j.element_from if j else ""
+    return [
+        {
+            "position": p,
+            "label": label,
+            "kind": kept.get(f"kind_{p}", ""),
+            "element_from": kept.get(f"from_{p}", ""),
+            "default": JunctionKind(defaults[p]).label if defaults.get(p) in JunctionKind.values else "",
+        }
+        for p, label in JunctionPosition.choices
+    ]
+
+
+@require_POST
+@login_required
+def junctions_save(request, job_pk, wall_pk):
+    """The wall page's junctions form: for each of the four positions, a junction a consultant enters or
+    the building kind's default. All four are checked by the API's rules first; then each is saved or
+    removed by the one write path, in one transaction, or none is."""
+    job, member, wall, back = _wall_to_edit(request, job_pk, wall_pk, "junctions-form")
+    entered = {j.position: j for j in JunctionOverride.objects.filter(wall=wall)}
+    typed = {
+        f"{k}_{p}": request.POST.get(f"{k}_{p}", "").strip()[:40]
+        for p in JunctionPosition.values
+        for k in ("kind", "from")
+    }
+    saves, removals, refused = [], [], False
+    for p, label in JunctionPosition.choices:
+        kind = typed[f"kind_{p}"]
+        if not kind:  # the default: an entered junction here goes
+            if p in entered:
+                removals.append(entered[p])
+            continue
+        data = {"position": p, "kind": kind, "element_from": typed[f"from_{p}"]}
+        serializer = JunctionOverrideSerializer(
+            instance=entered.get(p), data=data, context={"job": job, "wall": wall}
+        )
+        if serializer.is_valid():
+            saves.append(serializer)
+        else:
+            refused = True
+            _refused(request, serializer, f"Junctions not saved. {label}:", "junctions-form")
+    if refused:
+        request.session[JUNCTIONS_KEEP] = typed
+        return redirect(back)
+    actor = actions.Actor(member)
+    with transaction.atomic():
+        for obj in removals:
+            was = dict(JunctionOverrideSerializer(obj, context={"job": job, "wall": wall}).data)
+            actions.remove_field_input(actor, wall, "junction", obj, was)
+        for serializer in saves:
+            actions.save_field_input(actor, wall, "junction", serializer)
+    messages.success(
+        request,
+        "Junctions saved: the field prediction now uses them.",
+        extra_tags=feedback.form_tag("junctions-form"),
     )
     return redirect(back)

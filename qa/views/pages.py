@@ -22,7 +22,7 @@ from ..field.presentation import FIELD_CAUTION, field_summary, field_target_rows
 from ..login_throttle import LoginThrottleMixin
 from ..models import Finding, Member, Photo, SealPoint, Wall
 from . import feedback
-from .field import FORM_KEEP, ROOMS_KEEP, rooms_form
+from .field import FORM_KEEP, JUNCTIONS_KEEP, ROOMS_KEEP, junction_choices, junctions_form, rooms_form
 
 OPEN = OPEN_STATUSES
 
@@ -109,7 +109,9 @@ def wall_page(request, job_pk, wall_pk):
     verdict = verdict_of(summary, coverage_of(wall, points))
     ctx = wall_overview(job, member, wall, summary, findings, verdict)
     top, beside = feedback.split(request, [it["f"].pk for it in ctx["items"]])
-    top, at_form = feedback.by_form(top, ("field-test-form", "rooms-form"))  # shown inside those forms
+    top, at_form = feedback.by_form(
+        top, ("field-test-form", "rooms-form", "junctions-form")
+    )  # shown inside them
     for it in ctx["items"]:
         it["feedback"] = beside.get(it["f"].pk, [])
     for p in points:
@@ -128,12 +130,17 @@ def wall_page(request, job_pk, wall_pk):
             "page_messages": top,
             "field_messages": at_form["field-test-form"],
             "rooms_messages": at_form["rooms-form"],
+            "junctions_messages": at_form["junctions-form"],
             "field_form": request.session.pop(FORM_KEEP, {}),
             # Only those who may edit see the rooms form (and pay its query).
             "rooms_form": rooms_form(wall, request.session.pop(ROOMS_KEEP, None))
             if can(member, "edit")
             else {},
             "field_descriptors": FieldDescriptor.choices,
+            "junctions_form": junctions_form(wall, request.session.pop(JUNCTIONS_KEEP, None))
+            if can(member, "edit")
+            else [],
+            **junction_choices(),
         }
     )
     return render(request, "qa/wall.html", ctx)

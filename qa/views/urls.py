@@ -19,4 +19,5 @@ urlpatterns: list = [
     path("jobs/<id:job_pk>/test-plan/", field.field_test_plan_page, name="test-plan"),
     path("jobs/<id:job_pk>/walls/<id:wall_pk>/field-tests/", field.field_test_add, name="field-test-add"),
     path("jobs/<id:job_pk>/walls/<id:wall_pk>/rooms/", field.rooms_save, name="rooms-save"),
+    path("jobs/<id:job_pk>/walls/<id:wall_pk>/junctions/", field.junctions_save, name="junctions-save"),
 ]

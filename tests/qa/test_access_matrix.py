@@ -433,6 +433,7 @@ TABLE: dict[str, dict[str, Rule]] = {
     "qa:test-plan": {"GET": R("view")},
     "qa:field-test-add": {"POST": R("edit", ok=302, fmt="form")},
     "qa:rooms-save": {"POST": R("edit", ok=302, fmt="form")},
+    "qa:junctions-save": {"POST": R("edit", ok=302, fmt="form")},
     "api:field-prediction": {"GET": R("view")},
     "api:test-plan": {"GET": R("view")},
     "api:test-plan-csv": {"GET": R("view")},

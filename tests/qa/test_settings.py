@@ -27,6 +27,7 @@ OWN = {
     "SEALWALK_DEBUG",
     "DJANGO_SETTINGS_MODULE",
     "DATABASE_URL",
+    "LIST_MAX_AGE",
 }
 OWN |= {k for k in os.environ if k.startswith("UPLOAD_")}
 
@@ -246,3 +247,29 @@ def test_upload_limits_come_from_the_environment():
 def test_bad_upload_limit_stops_start_up_naming_the_variable(value, rule):
     result = run({"SEALWALK_DEBUG": "1", "UPLOAD_MAX_OPEN_PER_USER": value}, PRINT_DEBUG)
     assert refused(result, "UPLOAD_MAX_OPEN_PER_USER") and rule in result.stderr, result.stderr[-600:]
+
+
+# --- reads that may be a moment old; the data folder -----------------------------------------------
+
+
+def test_list_max_age_defaults_to_seconds_and_comes_from_the_environment():
+    code = "import django; django.setup()\nfrom django.conf import settings\nprint(settings.LIST_MAX_AGE)"
+    default = run({"SEALWALK_DEBUG": "1"}, code)
+    assert default.returncode == 0 and 0 < int(default.stdout.strip()) <= 10, default.stderr[-600:]
+    assert run({"SEALWALK_DEBUG": "1", "LIST_MAX_AGE": "0"}, code).stdout.strip() == "0"
+    bad = run({"SEALWALK_DEBUG": "1", "LIST_MAX_AGE": "-1"}, PRINT_DEBUG)
+    assert refused(bad, "LIST_MAX_AGE") and "0 or more" in bad.stderr
+
+
+def test_a_data_folder_not_made_yet_is_made(tmp_path):
+    folder = tmp_path / "new" / "data"
+    result = run({"SEALWALK_DEBUG": "1", "SEALWALK_DATA_DIR": str(folder)}, PRINT_DEBUG)
+    assert result.returncode == 0, result.stderr[-600:]
+    assert folder.is_dir()
+
+
+def test_a_data_folder_that_cannot_be_made_stops_start_up_naming_the_variable(tmp_path):
+    blocker = tmp_path / "a-file"
+    blocker.write_text("not a folder")
+    result = run({"SEALWALK_DEBUG": "1", "SEALWALK_DATA_DIR": str(blocker / "data")}, PRINT_DEBUG)
+    assert refused(result, "SEALWALK_DATA_DIR"), result.stderr[-600:]

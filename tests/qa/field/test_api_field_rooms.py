@@ -310,3 +310,75 @@ def test_rooms_form_is_for_those_who_may_edit(world, role):
     user = {"owner": world.owner, "crew": world.electrician, "outsider": world.outsider}[role]
     r = rooms_page_post(world, user, source_volume_m3="40")
     assert r.status_code in (403, 404) and not RoomPair.objects.exists()
+
+
+# --------------------------------------------------------------------------- the wall page's junctions form
+def junctions_page_post(world, user, **fields):
+    from django.test import Client
+
+    c = Client()
+    c.force_login(user)
+    data = {f"{k}_{p}": "" for p in ("floor", "ceiling", "end_a", "end_b") for k in ("kind", "from")}
+    data.update(fields)
+    return c.post(f"/jobs/{world.job.id}/walls/{world.wall.id}/junctions/", data, follow=True)
+
+
+def prediction(world, api) -> dict:
+    return api(world.owner).get(f"/api/jobs/{world.job.id}/walls/{world.wall.id}/field-prediction/").json()
+
+
+def test_junctions_form_saves_what_the_api_would_and_the_prediction_uses_it(world, api):
+    before = prediction(world, api)
+    r = junctions_page_post(
+        world,
+        world.inspector,
+        kind_floor="rigid_t",
+        from_floor="concrete_masonry",
+        kind_end_a="light_interrupted",
+    )
+    html = r.content.decode()
+    assert "Junctions saved" in html
+    stored = {j.position: (j.kind, j.element_from) for j in JunctionOverride.objects.filter(wall=world.wall)}
+    assert stored == {"floor": ("rigid_t", "concrete_masonry"), "end_a": ("light_interrupted", "")}
+    assert Event.objects.filter(verb="junction.created").count() == 2
+    assert '<option value="rigid_t" selected>' in html, "the form shows what is stored"
+    after = prediction(world, api)
+    assert after != before, "the prediction uses the entered junctions"
+    # The same junction through the API leaves an equal row (one write path).
+    second = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-09", level="2", length_m=world.wall.length_m,
+        height_m=world.wall.height_m, target_rating=50,
+    )  # fmt: skip
+    body = {"position": "floor", "kind": "rigid_t", "element_from": "concrete_masonry"}
+    assert api(world.inspector).post(junctions_url(world.job, second), body, format="json").status_code == 201
+    via_api = JunctionOverride.objects.get(wall=second)
+    assert (via_api.position, via_api.kind, via_api.element_from) == ("floor", "rigid_t", "concrete_masonry")
+
+    # Back to "default": the entered junction goes, with its event; the other stays.
+    junctions_page_post(world, world.inspector, kind_floor="rigid_t", from_floor="concrete_masonry")
+    assert set(JunctionOverride.objects.filter(wall=world.wall).values_list("position", flat=True)) == {
+        "floor"
+    }
+    removed = Event.objects.get(verb="junction.removed")
+    assert removed.data["was"]["kind"] == "light_interrupted"
+
+
+def test_junctions_form_refuses_bad_input_beside_the_form_and_stores_none_of_it(world):
+    JunctionOverride.objects.create(wall=world.wall, position="ceiling", kind="rigid_t")
+    r = junctions_page_post(
+        world, world.inspector, kind_floor="rigid_t", kind_end_b="bolted_on", from_end_b="wood_frame"
+    )
+    html = r.content.decode()
+    note = html.split("data-junctions-messages>", 1)[1].split("</div>", 1)[0]
+    assert "Junctions not saved" in note and "End B" in note and "kind" in note
+    assert 'id="junctions-form" open' in html
+    stored = {j.position: j.kind for j in JunctionOverride.objects.filter(wall=world.wall)}
+    assert stored == {"ceiling": "rigid_t"}, "nothing half-stored: no floor, and the ceiling not removed"
+    assert '<option value="rigid_t" selected>' in html, "what was typed comes back"
+
+
+@pytest.mark.parametrize("role", ["owner", "crew", "outsider"])
+def test_junctions_form_is_for_those_who_may_edit(world, role):
+    user = {"owner": world.owner, "crew": world.electrician, "outsider": world.outsider}[role]
+    r = junctions_page_post(world, user, kind_floor="rigid_t")
+    assert r.status_code in (403, 404) and not JunctionOverride.objects.exists()
