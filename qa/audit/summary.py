@@ -413,6 +413,8 @@ def compute_summary(wall, *, memo: dict | None = None) -> dict:
 # --------------------------------------------------------------------------- cached lookups
 #: Longest a recount may hold its lock (s); past it another reader recounts.
 RECOUNT_LOCK_S = 60
+#: Walls one reader recounts at most when their last audits are past ``max_age`` (the rest wait their turn).
+RECOUNT_AT_ONCE = 8
 
 
 def _latest_key(wall_id: int) -> str:
@@ -428,8 +430,9 @@ def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
     ``max_age`` (seconds; lists that many people poll, never a page that decides anything): a wall
     whose inputs changed since its last audit may be answered with that audit when it is at most
     this old, marked ``"recounting": True``. While a wall is being recorded fast (a sync every moment),
-    its audit is then worked out at most once per ``max_age`` instead of once per reader; and while one
-    reader recounts, the others answer with the older audit, marked the same way.
+    its audit is then worked out at most once per ``max_age`` instead of once per reader; one reader
+    recounts at most :data:`RECOUNT_AT_ONCE` such walls, the oldest first, and while it does, the others
+    answer with the older audits, marked the same way.
     Every summary carries ``key`` (the stamps it was computed for) and ``computed`` (epoch seconds).
     """
 
@@ -451,6 +454,12 @@ def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
             out[pk] = {**last, "recounting": True}
         elif 0 <= age <= max_age + RECOUNT_LOCK_S:
             stale[pk] = last
+    if len(stale) > RECOUNT_AT_ONCE:
+        # A reader recounts the oldest few and answers the rest with their last audits, marked: the
+        # recount of a busy job is spread over the next readers instead of stalling one of them.
+        oldest = sorted(stale, key=lambda pk: (stale[pk].get("computed", 0), pk))
+        for pk in oldest[RECOUNT_AT_ONCE:]:
+            out[pk] = {**stale.pop(pk), "recounting": True}
     cold = [w for w in walls if w.pk not in out]
     lock = None
     if stale:

@@ -139,3 +139,27 @@ def test_while_one_reader_recounts_the_others_answer_with_the_last_audit(world, 
     done = summary.audits_for_walls(walls(world), max_age=2)[world.wall.pk]
     assert "recounting" not in done and counted(done) == {first.pk, second.pk}
     assert summary.cache.add(lock, 1, 60), "the recount let go of its lock"
+
+
+def test_a_reader_recounts_the_oldest_few_and_the_next_reader_the_rest(world, monkeypatch):
+    second_wall = Wall.objects.create(
+        job=world.job, wall_type=world.wall_type, tag="2-02", level="2", length_m=5.0, height_m=2.7,
+        target_rating=50,
+    )  # fmt: skip
+    both = list(Wall.objects.filter(job=world.job).select_related("wall_type").order_by("id"))
+    summary.audits_for_walls(both[:1], max_age=2)  # the first wall's audit is the older one
+    start = summary.time.time()
+    monkeypatch.setattr(summary.time, "time", lambda: start + 1)
+    summary.audits_for_walls(both[1:], max_age=2)
+    hole(world)
+    Finding.objects.create(
+        job=world.job, wall=second_wall, kind="hole", face="through", diameter_m=0.03, trade="plumbing",
+        created_by=world.inspector,
+    )  # fmt: skip
+    monkeypatch.setattr(summary, "RECOUNT_AT_ONCE", 1)
+    monkeypatch.setattr(summary.time, "time", lambda: start + 10)  # both past the window
+    first = summary.audits_for_walls(both, max_age=2)
+    assert "recounting" not in first[world.wall.pk], "the oldest is recounted"
+    assert first[second_wall.pk]["recounting"] is True and not first[second_wall.pk]["rows"]
+    second = summary.audits_for_walls(both, max_age=2)
+    assert "recounting" not in second[second_wall.pk] and len(second[second_wall.pk]["rows"]) == 1
