@@ -232,11 +232,10 @@ class WallSerializer(serializers.ModelSerializer):
         # which is what lets a list answer share this memo between its rows.
         memo = cast(dict[str, Any], self.context).setdefault("_verdicts", {})
         if wall.pk not in memo:
-            many = getattr(self.parent, "instance", None)
-            listed = many is not None and self.parent is not None
-            walls = list(many) if many is not None and listed else [wall]
+            many = getattr(self.parent, "instance", None) if self.parent is not None else None
+            walls = [wall] if many is None else list(many)
             # A list may show an audit a moment old, marked so; one wall's answer is always recounted.
-            max_age = settings.LIST_MAX_AGE if listed else 0
+            max_age = 0 if many is None else settings.LIST_MAX_AGE
             memo.update(verdicts_for_walls([w for w in walls if w.pk not in memo] or [wall], max_age=max_age))
         return memo[wall.pk]
 

@@ -16,6 +16,7 @@ from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
 from contextvars import ContextVar
 
+from django.core.cache import cache
 from django.db import connection
 from django.db.models import Q
 
@@ -106,3 +107,16 @@ def deferred_invalidation() -> Iterator[None]:
         _DEFERRED.reset(token)
     for scope in sorted({s for s, _ in deferred}):
         bump(scope, [r for s, r in deferred if s == scope])
+
+
+@contextmanager
+def first_reader(key: str | None, seconds: int) -> Iterator[bool]:
+    """Whether this reader holds ``key`` for the block (a cache lock: one reader recomputes what many
+    would, the others answer with what they have). ``key`` None: no lock wanted, always True. A lock
+    left by a reader that died lapses after ``seconds``."""
+    mine = key is None or cache.add(key, 1, seconds)
+    try:
+        yield mine
+    finally:
+        if mine and key is not None:
+            cache.delete(key)

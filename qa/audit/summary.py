@@ -48,7 +48,7 @@ from django.db.models import Prefetch, prefetch_related_objects
 
 from ..choices import UNRESOLVED, FindingStatus
 from ..models import Finding, Opening, Wall
-from .cache import AUDIT_TIMEOUT, ENGINE_VERSION, audit_keys
+from .cache import AUDIT_TIMEOUT, ENGINE_VERSION, audit_keys, first_reader
 from .finding_leaks import (
     Unmodelled,
     WallContext,
@@ -462,19 +462,14 @@ def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
             out[pk] = {**stale.pop(pk), "recounting": True}
     cold = [w for w in walls if w.pk not in out]
     lock = None
-    if stale:
-        # One reader recounts a set of walls at a time; the others answer with the last audits, marked.
+    if stale:  # one reader recounts a set of walls at a time
         ids = ",".join(str(pk) for pk in sorted(w.pk for w in cold))
         lock = "sealwalk:audit-recount:" + hashlib.sha256(ids.encode()).hexdigest()[:24]
-        if not cache.add(lock, 1, RECOUNT_LOCK_S):
-            lock = None
+    with first_reader(lock, RECOUNT_LOCK_S) as mine:
+        if not mine:  # another reader is recounting them: the last audits, marked
             out.update({pk: {**last, "recounting": True} for pk, last in stale.items()})
             cold = [w for w in cold if w.pk not in out]
-    try:
         _recount(cold, keys, out, now)
-    finally:
-        if lock is not None:
-            cache.delete(lock)
     return out
 
 

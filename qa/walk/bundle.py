@@ -23,6 +23,7 @@ from django.utils import timezone
 
 from .. import audit, units
 from ..api.finding_json import FINDING_COLUMNS, finding_json
+from ..audit.cache import first_reader
 from ..audit.fix_order import fix_steps
 from ..audit.verdicts import GAINS, NEEDED, RATINGS, STATES, verdicts_for_walls
 from ..cautions import CAUTIONS, GENERAL_CAUTIONS
@@ -437,16 +438,9 @@ def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, b
             shared = None
         elif age > max_age:  # past the window: one reader builds anew, the others answer with this copy
             lock = f"{key}:building"
-            if cache.add(lock, 1, BUILD_LOCK_S):
-                shared = None
-            else:
-                lock = None
-    try:
-        if shared is None:
+    with first_reader(lock, BUILD_LOCK_S) as mine:
+        if shared is None or (lock is not None and mine):
             shared = _build_shared(job, member, key, max_age, audit_age)
-    finally:
-        if lock is not None:
-            cache.delete(lock)
     extra = json.dumps(
         {"generated_at": shared["generated_at"], "me": _me(member), "version": shared["version"]},
         cls=DjangoJSONEncoder,

@@ -363,6 +363,14 @@ def _rejection(exc: Exception) -> dict:
     return {"status": "rejected", "errors": {"payload": [f"could not be stored ({type(exc).__name__})"]}}
 
 
+def _rolled_back(events: list, mark: int) -> None:
+    """Forget what an operation rolled back to its savepoint left in the batch's memory."""
+    del events[mark:]
+    batch = _PREFETCHED.get()
+    if batch is not None:
+        batch.points.clear()  # a rolled-back tick may have changed a loaded row: read them again
+
+
 def _apply(actor: Actor, op: Operation, events: list) -> tuple[dict, Conflict | None]:
     """Apply one claimed operation in its own savepoint; a broken rule rolls back its changes and events."""
     mark = len(events)
@@ -371,10 +379,7 @@ def _apply(actor: Actor, op: Operation, events: list) -> tuple[dict, Conflict | 
             result, conflict = HANDLERS[op.kind](actor, op)
         return {"op_id": str(op.op_id), "kind": op.kind, **result}, conflict
     except (Reject, PermissionDenied, DataError, OverflowError, TypeError) as exc:
-        del events[mark:]
-        batch = _PREFETCHED.get()
-        if batch is not None:
-            batch.points.clear()  # a rolled-back tick may have changed a loaded row: read them again
+        _rolled_back(events, mark)
         return {"op_id": str(op.op_id), "kind": op.kind, **_rejection(exc)}, None
     except IntegrityError:
         # A create whose client id was stored through another door at the same moment: that one stands.
@@ -385,10 +390,7 @@ def _apply(actor: Actor, op: Operation, events: list) -> tuple[dict, Conflict | 
             )
         if twin is None:
             raise
-        del events[mark:]
-        batch = _PREFETCHED.get()
-        if batch is not None:
-            batch.points.clear()
+        _rolled_back(events, mark)
         return {
             "op_id": str(op.op_id),
             "kind": op.kind,
