@@ -417,15 +417,33 @@ RECOUNT_LOCK_S = 60
 RECOUNT_AT_ONCE = 8
 
 
+#: What a verdict needs of an audit (:func:`qa.audit.verdicts.verdict`): the headline a list reads.
+HEADLINE_KEYS = (
+    "v", "engine_version", "wall", "scheme", "rating_name", "target", "designed", "as_found", "walked",
+    "shortfall", "error", "flags", "key", "computed",
+)  # fmt: skip
+
+
 def _latest_key(wall_id: int) -> str:
-    """Cache key of the last audit computed for a wall, whatever its stamp (see ``max_age``)."""
+    """Cache key of the headline of the last audit computed for a wall, whatever its stamps."""
     return f"sealwalk:audit-latest:{ENGINE_VERSION}:{wall_id}"
 
 
-def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
+def headline(summary: dict) -> dict:
+    """The few numbers of an audit a verdict needs, with ``key`` and ``computed`` (a few hundred bytes
+    where the whole audit of a wall with hundreds of findings is a hundred kilobytes)."""
+    out = {k: summary[k] for k in HEADLINE_KEYS if k in summary}
+    reported = summary.get("reported")
+    if reported is not None:
+        out["reported"] = {"as_found": reported.get("as_found")}
+    return out
+
+
+def audits_for_walls(walls: Iterable, *, max_age: float = 0, whole: bool = True) -> dict[int, dict]:
     """Cached audit summaries of ``walls`` (each with its wall type loaded): {wall id: summary}.
 
-    Warm: two cache reads, no query. Cold walls: two queries (openings, findings) for all of them.
+    Warm: one cache read (two with ``max_age`` and ``whole``), no query. Cold walls: two queries
+    (openings, findings) for all of them.
 
     ``max_age`` (seconds; lists that many people poll, never a page that decides anything): a wall
     whose inputs changed since its last audit may be answered with that audit when it is at most
@@ -433,48 +451,67 @@ def audits_for_walls(walls: Iterable, *, max_age: float = 0) -> dict[int, dict]:
     its audit is then worked out at most once per ``max_age`` instead of once per reader; one reader
     recounts at most :data:`RECOUNT_AT_ONCE` such walls, the oldest first, and while it does, the others
     answer with the older audits, marked the same way.
+
+    ``whole`` False (with ``max_age``): the :func:`headline` of each audit is enough (a list of
+    verdicts) — the whole audits are then not read at all.
     Every summary carries ``key`` (the stamps it was computed for) and ``computed`` (epoch seconds).
     """
-
     walls = list(walls)
     if not walls:
         return {}
     keys = audit_keys(walls)
-    latest = {w.pk: _latest_key(w.pk) for w in walls} if max_age > 0 else {}
-    hit = cache.get_many([*keys.values(), *latest.values()])
-    out = {pk: hit[key] for pk, key in keys.items() if key in hit}
+    if max_age <= 0:  # the current audits, counted now where missing
+        hit = cache.get_many(list(keys.values()))
+        out = {pk: hit[key] for pk, key in keys.items() if key in hit}
+        _recount([w for w in walls if w.pk not in out], keys, out, time.time())
+        return out
+    # Each wall's latest headline says which audit it is (its stamps) and how old: small reads decide.
+    heads = cache.get_many([_latest_key(pk) for pk in keys])
+    last = {pk: heads[_latest_key(pk)] for pk in keys if _latest_key(pk) in heads}
     now = time.time()
+    chosen: dict[int, bool] = {}  # wall id -> answered with its last audit (marked recounting)
     stale: dict[int, dict] = {}  # older than max_age: answered only while another reader recounts
-    for pk, key in latest.items():
-        last = hit.get(key)
-        if pk in out or last is None:
-            continue
-        age = now - last.get("computed", 0)
-        if 0 <= age <= max_age:
-            out[pk] = {**last, "recounting": True}
+    for pk, head in last.items():
+        age = now - head.get("computed", 0)
+        if head.get("key") == keys[pk]:
+            chosen[pk] = False
+        elif 0 <= age <= max_age:
+            chosen[pk] = True
         elif 0 <= age <= max_age + RECOUNT_LOCK_S:
-            stale[pk] = last
+            stale[pk] = head
     if len(stale) > RECOUNT_AT_ONCE:
         # A reader recounts the oldest few and answers the rest with their last audits, marked: the
         # recount of a busy job is spread over the next readers instead of stalling one of them.
         oldest = sorted(stale, key=lambda pk: (stale[pk].get("computed", 0), pk))
         for pk in oldest[RECOUNT_AT_ONCE:]:
-            out[pk] = {**stale.pop(pk), "recounting": True}
-    cold = [w for w in walls if w.pk not in out]
+            stale.pop(pk)
+            chosen[pk] = True
     lock = None
     if stale:  # one reader recounts a set of walls at a time
-        ids = ",".join(str(pk) for pk in sorted(w.pk for w in cold))
+        cold_ids = sorted(pk for pk in keys if pk not in chosen)
+        ids = ",".join(str(pk) for pk in cold_ids)
         lock = "sealwalk:audit-recount:" + hashlib.sha256(ids.encode()).hexdigest()[:24]
     with first_reader(lock, RECOUNT_LOCK_S) as mine:
         if not mine:  # another reader is recounting them: the last audits, marked
-            out.update({pk: {**last, "recounting": True} for pk, last in stale.items()})
-            cold = [w for w in cold if w.pk not in out]
-        _recount(cold, keys, out, now)
+            chosen.update(dict.fromkeys(stale, True))
+        out = _answer(chosen, last, whole)
+        _recount([w for w in walls if w.pk not in out], keys, out, now)
     return out
 
 
+def _answer(chosen: dict[int, bool], last: dict[int, dict], whole: bool) -> dict[int, dict]:
+    """The chosen walls' audits (headlines, or the whole audits their headlines name), marked."""
+    if whole:
+        found = cache.get_many([last[pk]["key"] for pk in chosen])
+        got = {pk: found[last[pk]["key"]] for pk in chosen if last[pk]["key"] in found}
+    else:
+        got = {pk: last[pk] for pk in chosen}
+    # A whole audit no longer in the cache leaves its wall to the recount.
+    return {pk: {**audit, "recounting": True} if chosen[pk] else audit for pk, audit in got.items()}
+
+
 def _recount(cold: list, keys: dict[int, str], out: dict[int, dict], now: float) -> None:
-    """Compute the audits of ``cold`` walls into ``out`` and the cache (stamped and latest entries)."""
+    """Compute the audits of ``cold`` walls into ``out`` and the cache (whole, and the headline)."""
     if cold:
         for w in cold:  # a wall object reused after a change must not keep its old findings
             for name in ("openings", "findings"):
@@ -492,7 +529,8 @@ def _recount(cold: list, keys: dict[int, str], out: dict[int, dict], now: float)
         for w in cold:
             summary = compute_summary(w, memo=memo)
             summary.update(key=keys[w.pk], computed=now)
-            fresh[keys[w.pk]] = fresh[_latest_key(w.pk)] = out[w.pk] = summary
+            fresh[keys[w.pk]] = out[w.pk] = summary
+            fresh[_latest_key(w.pk)] = headline(summary)
         cache.set_many(fresh, AUDIT_TIMEOUT)
 
 

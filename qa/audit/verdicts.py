@@ -290,7 +290,7 @@ def verdicts_for_walls(
 
     walls = list(walls)
     if audits is None:
-        audits = audits_for_walls(walls, max_age=max_age)
+        audits = audits_for_walls(walls, max_age=max_age, whole=False)
     covs = coverage_for_walls(walls)
     return {w.pk: verdict(audits[w.pk], covs[w.pk]) for w in walls}
 

@@ -163,3 +163,29 @@ def test_a_reader_recounts_the_oldest_few_and_the_next_reader_the_rest(world, mo
     assert first[second_wall.pk]["recounting"] is True and not first[second_wall.pk]["rows"]
     second = summary.audits_for_walls(both, max_age=2)
     assert "recounting" not in second[second_wall.pk] and len(second[second_wall.pk]["rows"]) == 1
+
+
+def test_a_list_of_verdicts_reads_only_the_headlines_and_says_the_same(world, monkeypatch):
+    from qa.audit.verdicts import coverage_for_walls, verdict, verdicts_for_walls
+
+    hole(world)
+    hole(world, 0.05)
+    whole = summary.audits_for_walls(walls(world))[world.wall.pk]
+    read: list[str] = []
+    get_many = summary.cache.get_many
+    monkeypatch.setattr(summary.cache, "get_many", lambda keys: read.extend(keys) or get_many(keys))
+    listed = verdicts_for_walls(walls(world), max_age=60)[world.wall.pk]
+    assert read == [summary._latest_key(world.wall.pk)], "no whole audit is read for a list"
+    assert listed == verdict(whole, coverage_for_walls(walls(world))[world.wall.pk])
+    head = summary.headline(whole)
+    assert len(repr(head)) < len(repr(whole)) / 5
+    assert head["key"] == whole["key"] and head["reported"] == {"as_found": whole["reported"]["as_found"]}
+
+
+def test_a_whole_audit_gone_from_the_cache_is_recounted_not_lost(world):
+    first = hole(world)
+    summary.audits_for_walls(walls(world), max_age=60)
+    key = summary.audit_keys(walls(world))[world.wall.pk]
+    summary.cache.delete(key)  # culled: the headline still names it
+    again = summary.audits_for_walls(walls(world), max_age=60)[world.wall.pk]
+    assert "recounting" not in again and counted(again) == {first.pk}
