@@ -43,7 +43,15 @@ import numpy as np
 
 from .spectra import _A_WEIGHT, _OITC_L, _RW_SHAPE, _SPECTRA, _STC_SHAPE
 
-__all__ = ["ref_stc", "ref_rw", "ref_spectrum_level", "ref_oitc", "ref_composite", "ref_audit"]
+__all__ = [
+    "ref_stc",
+    "ref_rw",
+    "ref_spectrum_level",
+    "ref_oitc",
+    "ref_composite",
+    "ref_audit",
+    "ref_wall_order",
+]
 
 _HALF = 0.5 + 1e-7
 _STC_BANDS = range(4, 20)  # 125-4000 Hz in acoustics.BANDS
@@ -199,3 +207,40 @@ def ref_audit(
         "after": after,
         "after_tl": np.array(after_tl),
     }
+
+
+def ref_wall_order(model: Any, rating: str) -> tuple[list[int], list[int]]:
+    """The whole-wall fix-first order written plainly: ``(order, after)`` for a
+    :class:`acoustics.wall_model.WallModel` (method notes Sections 12 and 15).
+
+    At each step every finding still open is closed in turn, the whole model's power
+    W(x) = W_0 + L.x + x'Mx/2 is summed anew for that open set and rated; the best rating wins,
+    then the larger weighted power the fix removes (to 12 significant digits), then the lower id.
+    The last finding's step leaves the intact wall.
+    """
+    from .ratings import rating_weights
+
+    rater = _RATERS[rating]
+    weights = rating_weights(rating)
+    n = len(model.parts)
+    ids = [p.id for p in model.parts]
+    x = np.ones(n)
+    order: list[int] = []
+    after: list[int] = []
+    while len(order) < n:
+        now = model.power(x)
+        candidates = []
+        for k in range(n):
+            if not x[k]:
+                continue
+            y = x.copy()
+            y[k] = 0.0
+            w = model.power(y)
+            removed = float(f"{float((now - w) @ weights):.12g}")
+            tl = -10.0 * np.log10(np.maximum(w, model.base) / model.area)
+            candidates.append((-rater(tl), -removed, ids[k], k))
+        r, _, _, k = min(candidates)
+        order.append(k)
+        x[k] = 0.0
+        after.append(-r if len(order) < n else rater(-10.0 * np.log10(model.base / model.area)))
+    return order, after

@@ -223,13 +223,26 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
     w = total.copy()
     open_ = np.ones(n, dtype=bool)
     removes = dw.copy()  # what fixing each finding removes from the current state w
+    # Alike findings (the same added power, joined to nothing) tie on rating and on power at every
+    # step, so the lowest id of each such group stands for it: the others wait (``queued``) until it is
+    # fixed. The order is the plain greedy's; a wall of many alike boxes or holes rates far fewer rows.
+    queued = np.zeros(n, dtype=bool)
+    behind: dict[int, list[int]] = {}  # group head -> the rest of its group, in id order
+    alike: dict[bytes, list[int]] = {}
+    for k in np.flatnonzero(~cross.any(axis=(1, 2))):
+        alike.setdefault(lin[k].tobytes(), []).append(int(k))
+    for group in alike.values():
+        if len(group) > 1:
+            group.sort(key=lambda k: id_rank[k])
+            behind[group[0]] = group[1:]
+            queued[group[1:]] = True
     for step in range(n):
-        idx = np.flatnonzero(open_)
-        if idx.size == 1:
-            best = int(idx[0])
+        if step == n - 1:
+            best = int(np.flatnonzero(open_)[0])
             order.append(best)
             after[step], after_tl[step] = designed, designed_tl
             break
+        idx = np.flatnonzero(open_ & ~queued)
         d = removes[idx]
         cand = np.maximum(w - d, base)
         tls = _tl(cand, inv_s)
@@ -245,6 +258,11 @@ def audit_wall(model: WallModel, rating: str = "stc", target: int | None = None)
         w = cand[pick]
         open_[best] = False
         removes -= cross[:, best]  # with ``best`` closed, the paths it joined are gone
+        rest = behind.pop(best, None)
+        if rest:  # the next of its alike group stands for the group now
+            queued[rest[0]] = False
+            if rest[1:]:
+                behind[rest[0]] = rest[1:]
 
     needed: list[int] | None = None
     if target is not None:

@@ -155,8 +155,13 @@ def _cross(
     if con.leaves != 2:
         return m, how, flags
     floor = con.leaf_cross()  # the same for every pair
+    faces = [frozenset(p.face for p in part.ports) for part in parts]
     for k in range(n):
+        if not faces[k]:
+            continue
         for l in range(k + 1, n):
+            if not faces[l] or (len(faces[k] | faces[l]) == 1):
+                continue  # no port of one on the other face: nothing joins them (most pairs of a wall)
             total = np.zeros(N_BANDS)
             kinds = []
             for p in parts[k].ports:

@@ -41,6 +41,9 @@ import numpy as np
 from ..choices import FindingStatus, GapKind
 from .curves import N_BANDS, tl_array
 
+#: Each gap kind's words (Django's ``get_kind_display`` looks them up anew for every finding).
+KIND_LABEL = dict(GapKind.choices)
+
 #: One layer of 15.9 mm (5/8 in) gypsum board: face thickness of a lab-curve wall type (common
 #: practice, no source; the engine's default too).
 DEFAULT_BOARD_M = 0.0159
@@ -182,7 +185,7 @@ def finding_spec(f, ctx: WallContext) -> dict:
     spec: dict = {
         "id": str(f.pk),
         "kind": f.kind,
-        "label": f"{f.get_kind_display()} #{f.pk}",
+        "label": f"{KIND_LABEL.get(f.kind, f.kind)} #{f.pk}",
         "count": int(f.count or 1),
         "reported_fixed": f.status == FindingStatus.FIXED,
     }

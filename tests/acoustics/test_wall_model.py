@@ -214,3 +214,39 @@ def test_old_entry_point_still_works_and_module_is_not_shadowed():
     res = ac.audit(tl, S, [ac.hole(0.05, 0.14)])
     assert res.designed > res.as_found
     np.testing.assert_allclose(res.as_found_tl, ac.tl_with_added_area(tl, S, ac.hole(0.05, 0.14).area))
+
+
+@pytest.mark.parametrize("rating", ["stc", "rw"])
+def test_fix_order_equals_the_plain_whole_wall_greedy(rating):
+    """audit_wall (batched candidates, alike findings standing in for each other) == the greedy written
+    plainly (acoustics._reference.ref_wall_order): every step closes each open finding in turn on the
+    whole model. Random walls with repeated alike findings and findings joined across the cavity."""
+    from acoustics._reference import ref_wall_order
+
+    rng = np.random.default_rng(31 if rating == "stc" else 32)
+    makers = [
+        lambda: {"kind": "hole", "face": str(rng.choice(["a", "b"])), "diameter": 0.012},
+        lambda: {"kind": "hole", "face": "a", "diameter": float(rng.uniform(0.005, 0.08))},
+        lambda: {"kind": "hole", "face": "through", "diameter": float(rng.uniform(0.005, 0.03))},
+        lambda: {"kind": "boxes", "face": "through", "oversize": 0.003},
+        lambda: {"kind": "slit", "face": "a", "width": 0.003, "length": 0.5, "edge": "bottom"},
+        lambda: {"kind": "slit", "face": "b", "width": 0.003, "length": 0.5, "edge": "bottom"},
+    ]
+    for wall in range(12):
+        spec = (STEEL, EMPTY, DOUBLE)[wall % 3]
+        kinds = rng.integers(0, len(makers), int(rng.integers(2, 16)))
+        findings = [makers[k]() for k in kinds]
+        findings += [dict(findings[0]) for _ in range(int(rng.integers(0, 5)))]  # alike ones
+        for i, f in enumerate(findings):
+            f["id"] = f"f{i:02d}"
+        model = wall_model(spec, S, height=H, findings=findings)
+        got = audit_wall(model, rating=rating)
+        order, after = ref_wall_order(model, rating)
+        assert (got.order, got.after.tolist()) == (order, after), f"wall {wall}"
+
+
+def test_many_alike_findings_keep_their_id_order():
+    """Twenty alike holes tie at every step: they are fixed in id order, whatever their input order."""
+    findings = [{"id": f"h{i:02d}", "kind": "hole", "face": "a", "diameter": 0.02} for i in range(20)]
+    a = audit_wall(wall_model(STEEL, S, height=H, findings=findings[::-1]))
+    assert [a.ids[k] for k in a.order] == sorted(f["id"] for f in findings)
