@@ -10,7 +10,9 @@ from __future__ import annotations
 import hashlib
 import json
 import math
+import threading
 import time
+from collections import OrderedDict
 from datetime import timedelta
 from types import SimpleNamespace
 from typing import Any
@@ -417,6 +419,32 @@ def _wrote_lately(job: Job, member: Member, seconds: float) -> bool:
     return Event.objects.filter(job=job, actor_id=member.user_id, at__gte=since).exists()
 
 
+#: Shared bundle texts this process has read, by version (a version names one text for good): a copy
+#: is megabytes on a busy job, and every reader of it would otherwise fetch and decode it again.
+_TEXTS: OrderedDict[str, bytes] = OrderedDict()
+_TEXTS_KEPT = 8
+_TEXTS_LOCK = threading.Lock()
+
+
+def _keep_text(version: str, text: bytes) -> None:
+    with _TEXTS_LOCK:
+        _TEXTS[version] = text
+        _TEXTS.move_to_end(version)
+        while len(_TEXTS) > _TEXTS_KEPT:
+            _TEXTS.popitem(last=False)
+
+
+def _shared_text(key: str, version: str) -> bytes | None:
+    """The shared copy named ``version``: from this process, else from the cache (then kept here)."""
+    with _TEXTS_LOCK:
+        text = _TEXTS.get(version)
+    if text is None:
+        text = cache.get(f"{key}:text:{version}")
+        if text is not None:
+            _keep_text(version, text)
+    return text
+
+
 def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, bytes]:
     """The bundle of :func:`build_bundle` as JSON text, encoded once: (version, UTF-8 bytes).
 
@@ -429,7 +457,7 @@ def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, b
     key = f"sealwalk:bundle:{BUNDLE_FORMAT}:{job.pk}:{_shared_view(member)}"
     shared, lock, audit_age = None, None, max_age
     if max_age > 0:
-        shared = cache.get(key)
+        shared = cache.get(key)  # which copy is current: its version, when built (a few bytes)
         age = time.time() - shared["built"] if shared is not None else -1.0
         # The margin covers a change committed a moment after its event was stamped.
         if _wrote_lately(job, member, max_age + WRITE_MARGIN_S):
@@ -438,32 +466,33 @@ def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, b
             shared = None
         elif age > max_age:  # past the window: one reader builds anew, the others answer with this copy
             lock = f"{key}:building"
+    text = None
     with first_reader(lock, BUILD_LOCK_S) as mine:
-        if shared is None or (lock is not None and mine):
-            shared = _build_shared(job, member, key, max_age, audit_age)
+        if shared is not None and not (lock is not None and mine):
+            text = _shared_text(key, shared["version"])
+        if text is None:  # none to share, ours to build, or the copy gone from the cache
+            shared, text = _build_shared(job, member, key, max_age, audit_age)
     extra = json.dumps(
         {"generated_at": shared["generated_at"], "me": _me(member), "version": shared["version"]},
         cls=DjangoJSONEncoder,
         separators=(",", ":"),
     )
     # The three keys follow the shared content; the walk reads JSON, not the order of its keys.
-    return shared["version"], (shared["text"][:-1] + "," + extra[1:]).encode()
+    return shared["version"], text[:-1] + b"," + extra[1:].encode()
 
 
-def _build_shared(job: Job, member: Member, key: str, max_age: float, audit_age: float) -> dict:
-    """Build the bundle, without ``me``, as JSON text with its version; kept for ``max_age`` if any.
+def _build_shared(job: Job, member: Member, key: str, max_age: float, audit_age: float) -> tuple[dict, bytes]:
+    """Build the bundle, without ``me``: (what names the copy, its JSON text); kept for ``max_age`` if any.
 
     ``audit_age``: how old the audits in it may be (see :func:`qa.audit.audits_for_walls`).
     """
     body = build_bundle(job, member, audit_age=audit_age)
     del body["me"]
-    text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":"))
-    shared = {
-        "text": text,
-        "version": hashlib.sha256(text.encode()).hexdigest()[:20],
-        "built": time.time(),
-        "generated_at": timezone.now().isoformat(),
-    }
+    text = json.dumps(body, cls=DjangoJSONEncoder, sort_keys=True, separators=(",", ":")).encode()
+    version = hashlib.sha256(text).hexdigest()[:20]
+    shared = {"version": version, "built": time.time(), "generated_at": timezone.now().isoformat()}
     if max_age > 0:
-        cache.set(key, shared, timeout=int(max_age + BUILD_LOCK_S) + 1)
-    return shared
+        timeout = int(max_age + BUILD_LOCK_S) + 1
+        cache.set_many({f"{key}:text:{version}": text, key: shared}, timeout=timeout)
+        _keep_text(version, text)
+    return shared, text

@@ -111,3 +111,33 @@ def test_whoever_changed_something_gets_audits_that_count_it(world, api, setting
     body = client.get(url(world.job)).json()
     assert new in body["audits"][str(world.wall.pk)]["includes"]
     assert body["verdicts"][str(world.wall.pk)]["recounting"] is False
+
+
+def test_a_shared_copy_is_fetched_once_per_process(world, api, settings, monkeypatch, second_owner):
+    settings.LIST_MAX_AGE = 60
+    first = api(world.owner).get(url(world.job))
+    version = first["ETag"].strip('"')
+    fetched: list[str] = []
+    get = bundle.cache.get
+    monkeypatch.setattr(bundle.cache, "get", lambda key, *a: fetched.append(key) or get(key, *a))
+    api(second_owner).get(url(world.job))
+    assert not [k for k in fetched if ":text:" in k], "kept in this process since it was built here"
+    bundle._TEXTS.clear()  # another process: it reads the copy from the cache once, then keeps it
+    for _ in range(2):
+        again = api(second_owner).get(url(world.job))
+        assert again["ETag"] == first["ETag"] and again.json()["me"]["username"] == "own2"
+    assert [k for k in fetched if ":text:" in k] == [f"{_key(world)}:text:{version}"]
+
+
+def test_a_copy_gone_from_the_cache_is_built_again(world, api, settings, second_owner):
+    settings.LIST_MAX_AGE = 60
+    first = api(world.owner).get(url(world.job))
+    bundle.cache.delete(f"{_key(world)}:text:{first['ETag'].strip(chr(34))}")
+    bundle._TEXTS.clear()
+    again = api(second_owner).get(url(world.job))
+    assert again.status_code == 200 and again["ETag"] == first["ETag"], "nothing changed: the same content"
+    assert client_ids(again.json()) == client_ids(first.json())
+
+
+def _key(world) -> str:
+    return f"sealwalk:bundle:{bundle.BUNDLE_FORMAT}:{world.job.pk}:owner"
