@@ -7,7 +7,8 @@ writes)::
         [--inspectors 50] [--owners 20] [--seconds 30] [--workers 4] [--batch 10]
 
 It creates a throwaway database next to DATABASE_URL (the role needs CREATEDB), starts gunicorn with
-several sync workers on loopback, and runs one thread per simulated person for a bounded time:
+several sync workers on loopback as deployed (debug off), and runs one thread per simulated person
+for a bounded time:
 
 - an inspector sends sync batches of ``finding.create`` operations (each with its own op id and
   finding client id, as the walk's outbox does) and, every third batch, uploads one photo with a
@@ -178,8 +179,8 @@ def main(argv=None) -> int:
         f"python={platform.python_version()}"
         f" workers={args.workers} inspectors={args.inspectors} owners={args.owners} seconds={args.seconds}"
     )
-    with prepared_server(workers=args.workers, walls=40, people=people) as server:
-        print(f"database: {server.vendor}")
+    with prepared_server(workers=args.workers, walls=40, people=people, production=True) as server:
+        print(f"database: {server.vendor}; server: debug off")
         stats, stop = Stats(), threading.Event()
         threads = [
             threading.Thread(target=inspector, args=(server, stats, f"insp{i:02d}", stop, args.batch))

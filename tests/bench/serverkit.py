@@ -138,8 +138,15 @@ def _pg_admin(url: str):
 
 @contextlib.contextmanager
 def prepared_server(
-    *, workers: int = 3, walls: int = 5, people: list | None = None, threads: int = 1
+    *,
+    workers: int = 3,
+    walls: int = 5,
+    people: list | None = None,
+    threads: int = 1,
+    production: bool = False,
 ) -> Iterator[Server]:
+    """The server, in debug (static files straight from the source) or as deployed (``production``:
+    debug off, so no SQL statement is logged in memory, a random secret key, loopback hosts only)."""
     people = people or [("insp", "inspector", ""), ("elec", "crew", "electrical"), ("own", "owner", "")]
     base_url = os.environ.get("DATABASE_URL", "")
     tmp = Path(tempfile.mkdtemp(prefix="sealwalk-srv-"))
@@ -157,16 +164,21 @@ def prepared_server(
         **os.environ,
         "DATABASE_URL": db_url,
         "SEALWALK_DATA_DIR": str(tmp),
-        "SEALWALK_DEBUG": "1",
+        "SEALWALK_DEBUG": "0" if production else "1",
         "DJANGO_SETTINGS_MODULE": "qa.settings",
         "PYTHONPATH": str(ROOT),
     }
+    if production:
+        env.update(SECRET_KEY=secrets.token_urlsafe(48), ALLOWED_HOSTS="127.0.0.1,localhost")
     env.pop("DJANGO_ALLOW_ASYNC_UNSAFE", None)
     py = sys.executable
     master = None
     log = tmp / "gunicorn.log"
     try:
-        for cmd in (["migrate", "-v0"], ["createcachetable"]):
+        setup = [["migrate", "-v0"], ["createcachetable"]]
+        if production:  # as deployed: hashed, compressed static files
+            setup.append(["collectstatic", "--noinput", "-v0"])
+        for cmd in setup:
             subprocess.run(
                 [py, "manage.py", *cmd], cwd=ROOT, env=env, check=True, capture_output=True, timeout=300
             )
