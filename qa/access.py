@@ -27,9 +27,11 @@ def membership(user, job_id) -> Member:
     if not getattr(user, "is_authenticated", False):
         raise Http404("No such job")
     try:
-        return Member.objects.select_related("job").get(job_id=job_id, user=user, active=True)
+        member = Member.objects.select_related("job").get(job_id=job_id, user=user, active=True)
     except (Member.DoesNotExist, ValueError, TypeError, OverflowError):
         raise Http404("No such job") from None
+    member.user = user  # the signed-in user is this member's: no query to read it again
+    return member
 
 
 def require(member: Member, right: str, *, trade: str | None = None) -> Member:
