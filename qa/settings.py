@@ -264,7 +264,8 @@ REST_FRAMEWORK = {
     "DEFAULT_SCHEMA_CLASS": "drf_spectacular.openapi.AutoSchema",
     "DEFAULT_FILTER_BACKENDS": [],
     "EXCEPTION_HANDLER": "qa.api.errors.exception_handler",
-    "DEFAULT_THROTTLE_RATES": {"login": "10/min"},
+    # Adding a member answers whether an account name exists: bounded per person (qa/api/views.py).
+    "DEFAULT_THROTTLE_RATES": {"login": "10/min", "member_add": "60/hour"},
     "NON_FIELD_ERRORS_KEY": "non_field_errors",
 }
 

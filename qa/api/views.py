@@ -12,6 +12,7 @@ from rest_framework import mixins, status, viewsets
 from rest_framework.decorators import action
 from rest_framework.exceptions import NotFound, ValidationError
 from rest_framework.response import Response
+from rest_framework.throttling import ScopedRateThrottle
 
 from .. import actions
 from ..access import membership, require
@@ -100,6 +101,13 @@ class MemberViewSet(
     serializer_class = s.MemberSerializer
     queryset = Member.objects.none()  # for the schema only; get_queryset scopes to the job
     write_right = "manage_members"
+
+    throttle_scope = "member_add"
+
+    def get_throttles(self):
+        # A refused add tells that no such account may be added; an accepted one, that it exists:
+        # adds are counted per person so nobody can list the accounts by trying names.
+        return [ScopedRateThrottle()] if self.action == "create" else []
 
     def get_queryset(self):
         return Member.objects.filter(job=self.job).select_related("user").order_by("id")

@@ -466,11 +466,11 @@ def bundle_json(job: Job, member: Member, *, max_age: float = 0) -> tuple[str, b
             shared = None
         elif age > max_age:  # past the window: one reader builds anew, the others answer with this copy
             lock = f"{key}:building"
-    text = None
+    text: bytes | None = None
     with first_reader(lock, BUILD_LOCK_S) as mine:
         if shared is not None and not (lock is not None and mine):
             text = _shared_text(key, shared["version"])
-        if text is None:  # none to share, ours to build, or the copy gone from the cache
+        if shared is None or text is None:  # none to share, ours to build, or the copy gone from the cache
             shared, text = _build_shared(job, member, key, max_age, audit_age)
     extra = json.dumps(
         {"generated_at": shared["generated_at"], "me": _me(member), "version": shared["version"]},

@@ -199,3 +199,26 @@ def test_an_inspector_whose_account_is_disabled_does_not_count_as_the_other_one(
     me = member_of(world, world.inspector)
     r = api(world.inspector).patch(url(world.job, me.pk), {"active": False}, format="json")
     assert r.status_code == 400
+
+
+def test_adding_members_is_bounded_per_person(world, api, settings):
+    """An add answers whether an account exists, so adds are counted per person (product rule, no
+    published source): past the rate, a 429 that says when to try again, and nothing is stored."""
+    from rest_framework.settings import api_settings
+
+    rates = {**api_settings.DEFAULT_THROTTLE_RATES, "member_add": "3/hour"}
+    monkey = pytest.MonkeyPatch()
+    monkey.setattr("rest_framework.throttling.SimpleRateThrottle.THROTTLE_RATES", rates)
+    try:
+        client = api(world.inspector)
+        for name in ("nobody-1", "nobody-2", "nobody-3"):
+            r = client.post(url(world.job), {"username": name, "role": "owner"}, format="json")
+            assert r.status_code == 400 and "username" in r.json()
+        r = client.post(url(world.job), {"username": "nobody-4", "role": "owner"}, format="json")
+        assert r.status_code == 429 and "available in" in str(r.json())
+        assert client.get(url(world.job)).status_code == 200, "reading the members is not counted"
+        member = member_of(world, world.electrician)
+        r = client.patch(url(world.job, member.pk), {"role": "crew", "trade": "electrical"}, format="json")
+        assert r.status_code == 200, "changing a member is not counted"
+    finally:
+        monkey.undo()
