@@ -41,6 +41,7 @@ from typing import Any
 
 import numpy as np
 
+from .ratings import rating_weights
 from .spectra import _A_WEIGHT, _OITC_L, _RW_SHAPE, _SPECTRA, _STC_SHAPE
 
 __all__ = [
@@ -218,8 +219,6 @@ def ref_wall_order(model: Any, rating: str) -> tuple[list[int], list[int]]:
     then the larger weighted power the fix removes (to 12 significant digits), then the lower id.
     The last finding's step leaves the intact wall.
     """
-    from .ratings import rating_weights
-
     rater = _RATERS[rating]
     weights = rating_weights(rating)
     n = len(model.parts)

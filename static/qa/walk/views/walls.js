@@ -22,14 +22,14 @@ export async function wallsView(root, ctx) {
     if (crew && !findings.length) continue;
     const checked = points.filter((p) => p.status !== "unchecked").length;
     const local = findings.some((f) => f.local) || points.some((p) => p.pending);
-    const verdict = crew ? null : verdictChip(state, w, local);
-    const tone = verdict ? ` verdict-${verdict.dataset.tone}` : "";
+    const v = crew ? null : state.bundle.verdicts?.[String(w.id)];
+    const tone = v ? ` verdict-${v.tone}` : "";
     rows.push(h("li", {},
       h("a", { class: `wall-row${tone}${open ? " has-open" : ""}`, href: `#/j/${state.job.id}/w/${w.id}`, "data-wall": w.tag },
         h("span", { class: "row-title" }, w.tag, local ? h("span", { class: "chip info" }, "not sent") : null),
         h("span", { class: "row-sub" }, [w.location, `level ${w.level}`].filter(Boolean).join(" · ")),
         h("span", { class: "chips" },
-          verdict,
+          v ? verdictChip(v, local) : null,
           crew ? null : h("span", { class: "chip" }, `${checked}/${points.length} checked`),
           open ? h("span", { class: "chip warn" }, `${open} open`) : null,
           crew ? h("span", { class: "chip" }, `${findings.length} for ${state.me.trade}`) : null))));
@@ -65,11 +65,9 @@ export async function wallsView(root, ctx) {
 // The wall's verdict as the desktop words it (qa/audit/verdicts.py, in the bundle): "Below target by 10"
 // even when every point is checked and no finding is open (fixes not verified yet still cost). Changes
 // made on this phone, or being counted on the server, are not in it yet: it is then the last known one.
-function verdictChip(state, wall, local) {
-  const v = state.bundle.verdicts && state.bundle.verdicts[String(wall.id)];
-  if (!v) return null;
+function verdictChip(v, local) {
   const words = v.state === "below" && v.shortfall ? `${v.word} by ${v.shortfall}` : v.word;
   const known = local || v.recounting || !navigator.onLine;
   return h("span", { class: `chip verdict tone-${v.tone}${known ? " last-known" : ""}`, "data-verdict": v.state,
-    "data-tone": v.tone, title: v.meaning }, known ? `${words} · last known` : words);
+    title: v.meaning }, known ? `${words} · last known` : words);
 }
